@@ -1,0 +1,80 @@
+// Typed configuration, parsed once. Nothing else in the project reads process.env.
+import fs from "node:fs";
+import path from "node:path";
+import crypto from "node:crypto";
+
+const e = process.env;
+
+function int(name: string, fallback: number): number {
+  const raw = e[name];
+  if (raw === undefined || raw === "") return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n <= 0 || n > 65535) throw new Error(`${name} must be a port/positive integer, got "${raw}"`);
+  return n;
+}
+
+const root = e.ERGODEX_ROOT ?? process.cwd();
+const dataDir = path.resolve(root, e.ERGODEX_DATA_DIR ?? ".data");
+
+/** A secret from the environment, or generated once and kept under .data/secrets/. */
+function secret(name: string, envName: string): string {
+  const fromEnv = e[envName];
+  if (fromEnv) return fromEnv;
+  const file = path.join(dataDir, "secrets", name);
+  try {
+    return fs.readFileSync(file, "utf8").trim();
+  } catch {
+    fs.mkdirSync(path.dirname(file), { recursive: true, mode: 0o700 });
+    const value = crypto.randomBytes(32).toString("base64url");
+    try {
+      fs.writeFileSync(file, value + "\n", { mode: 0o600, flag: "wx" });
+    } catch {
+      return fs.readFileSync(file, "utf8").trim(); // another process won the race
+    }
+    return value;
+  }
+}
+
+export const env = {
+  root,
+  dataDir,
+  nodeEnv: e.NODE_ENV ?? "development",
+  isTest: e.ERGODEX_TEST === "1",
+  logLevel: e.LOG_LEVEL ?? "info",
+  pg: {
+    host: e.ERGODEX_PG_HOST ?? "127.0.0.1",
+    port: int("ERGODEX_PG_PORT", 54329),
+    database: e.ERGODEX_PG_DB ?? "ergodex",
+    user: e.ERGODEX_PG_USER ?? "ergodex",
+    password: e.ERGODEX_PG_PASSWORD ?? "ergodex-local",
+    dataDir: path.resolve(root, e.ERGODEX_PG_DATA ?? path.join(dataDir, "pg")),
+  },
+  web: {
+    host: "127.0.0.1",
+    port: int("ERGODEX_PORT", 3417),
+    /** Largest JSON body a route handler accepts. */
+    maxBodyBytes: int("ERGODEX_MAX_BODY", 1_048_576),
+  },
+  cluster: { port: int("ERGODEX_CLUSTER_PORT", 2222), stateDir: path.join(dataDir, "cluster-fake") },
+  smtp: { port: int("ERGODEX_SMTP_PORT", 2525), mailDir: path.join(dataDir, "mail") },
+  broker: { healthPort: int("ERGODEX_BROKER_PORT", 3418) },
+  archiveDir: path.join(dataDir, "archive"),
+  get appUrl(): string {
+    return e.NEXTAUTH_URL ?? `http://127.0.0.1:${this.web.port}`;
+  },
+  get authSecret(): string {
+    return secret("auth-secret", "NEXTAUTH_SECRET");
+  },
+  /** 32-byte key for AES-256-GCM encryption of cluster private keys. */
+  get keyEncryptionKey(): Buffer {
+    const raw = secret("key-encryption-key", "ERGODEX_KEY_ENCRYPTION_KEY");
+    const buf = Buffer.from(raw, "base64url");
+    if (buf.length !== 32) throw new Error("ERGODEX_KEY_ENCRYPTION_KEY must be 32 bytes, base64url-encoded");
+    return buf;
+  },
+};
+
+export function databaseUrl(database = env.pg.database): string {
+  const { user, password, host, port } = env.pg;
+  return `postgres://${encodeURIComponent(user)}:${encodeURIComponent(password)}@${host}:${port}/${database}`;
+}
