@@ -16,6 +16,7 @@ function fftOfSize(size: number): FFT {
 
 /** Smallest power of two ≥ 2n: the zero-padding that makes the FFT's circular correlation linear. */
 export function paddedFftSize(n: number): number {
+  if (!Number.isInteger(n) || n < 1) throw new AnalysisError("INVALID_OPTION", `paddedFftSize(n): must be an integer ≥ 1, got ${n}`);
   let size = 2;
   while (size < 2 * n) size *= 2;
   return size;

@@ -1,3 +1,5 @@
+import { assertOption } from "./errors";
+
 // Hand-written because no statistics package is installed (and only the χ² tail is needed):
 // the regularised incomplete gamma function by its series and continued fraction, the standard
 // pair of expansions (Abramowitz & Stegun 6.5.29 and 6.5.31).
@@ -53,7 +55,9 @@ export function gammaQ(a: number, x: number): number {
   return Math.exp(logPrefactor) * h;
 }
 
-/** P(χ²_dof > chi2): the upper tail of the χ² distribution with dof degrees of freedom. */
+/** P(χ²_dof > chi2): the upper tail of the χ² distribution (chi2 ≥ 0, dof > 0). */
 export function chi2Survival(chi2: number, dof: number): number {
+  assertOption(chi2, "chi2Survival(chi2)", "a finite number ≥ 0", (v) => v >= 0);
+  assertOption(dof, "chi2Survival(dof)", "a finite number > 0", (v) => v > 0);
   return gammaQ(dof / 2, chi2 / 2);
 }

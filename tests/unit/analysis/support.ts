@@ -49,3 +49,19 @@ export function ar1TauInt(phi: number): number {
 export function ar1MeanError(phi: number, n: number): number {
   return Math.sqrt((2 * ar1TauInt(phi)) / ((1 - phi * phi) * n));
 }
+
+/**
+ * Exact spectrum of the graph Laplacian of a periodic L^d lattice: Σ_i 4 sin²(π k_i/L) over all
+ * k ∈ [0, L)^d (plane waves diagonalise it; standard result). One zero mode (k = 0).
+ */
+export function torusLaplacianSpectrum(d: number, L: number): Float64Array {
+  const one = Array.from({ length: L }, (_, k) => 4 * Math.sin((Math.PI * k) / L) ** 2);
+  let current = new Float64Array([0]);
+  for (let dim = 0; dim < d; dim++) {
+    const next = new Float64Array(current.length * L);
+    let p = 0;
+    for (const c of current) for (const e of one) next[p++] = c + e;
+    current = next;
+  }
+  return current;
+}
