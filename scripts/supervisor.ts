@@ -94,7 +94,7 @@ async function main() {
   await task("seed", ["scripts/seed.ts"]);
   const tsx = path.join(env.root, "node_modules/tsx/dist/cli.mjs");
   const optional: Service[] = [
-    { name: "cluster", color: 33, cmd: process.execPath, args: [tsx, "cluster-fake/index.ts"] },
+    { name: "cluster", color: 33, cmd: process.execPath, args: [tsx, "cluster-fake/index.ts"], extraEnv: { ERGODEX_CLUSTER_STATE_DIR: env.cluster.stateDir } },
     { name: "smtp", color: 32, cmd: process.execPath, args: [tsx, "scripts/fake-smtp.ts"] },
     { name: "broker", color: 34, cmd: process.execPath, args: [tsx, "broker/index.ts"] },
   ].filter((s) => fs.existsSync(path.join(env.root, s.args[1])));

@@ -15,6 +15,8 @@ export interface SamplerCore {
   readonly workPerSweep: number;
   /** Set the start configuration (fresh runs only; may draw random numbers). */
   init(): void;
+  /** Called once when thermalization ends, before the first measurement sweep (fresh runs and resumes alike). */
+  startMeasuring?(): void;
   /** Advance by one sweep. */
   sweep(): void;
   /** Write the observables of the current state into `out` (length = observables.length). */

@@ -92,11 +92,13 @@ export async function driveRun(o: DriveOptions): Promise<DriveResult> {
   let nextCheck = done + stride;
   let lastProgress = Date.now();
   let lastYield = lastProgress;
+  if (done >= therm) core.startMeasuring?.();
 
   while (done < total) {
     if (stop.requested) break;
     core.sweep();
     done++;
+    if (done === therm) core.startMeasuring?.();
     if (done > therm && (done - therm) % interval === 0) {
       core.measure(out);
       writer.append(done, out);

@@ -1,7 +1,7 @@
 import "server-only";
 import { db } from "@/models";
 import { AppError } from "../errors";
-import { checkPassword, hashPassword } from "../auth/sign-in";
+import { checkPassword, hashPassword } from "../auth/passwords";
 import { recordAudit, type AuditSource } from "../audit/record-audit";
 
 export const MIN_PASSWORD_LENGTH = 10;
@@ -11,7 +11,7 @@ export async function changePassword(src: AuditSource, userId: string, current: 
   const { User, sequelize } = db();
   const user = await User.findByPk(userId);
   if (!user) throw new AppError("not_found", "person not found");
-  if (!(await checkPassword(current, user.passwordHash))) throw new AppError("invalid", "the current password is wrong", { issues: [{ path: "/current", message: "is wrong" }] });
+  if (!user.passwordHash || !(await checkPassword(current, user.passwordHash))) throw new AppError("invalid", "the current password is wrong", { issues: [{ path: "/current", message: "is wrong" }] });
   if (next.length < MIN_PASSWORD_LENGTH) throw new AppError("invalid", `the new password needs at least ${MIN_PASSWORD_LENGTH} characters`, { issues: [{ path: "/next", message: `needs at least ${MIN_PASSWORD_LENGTH} characters` }] });
   const passwordHash = await hashPassword(next);
   await sequelize.transaction(async (transaction) => {

@@ -1,4 +1,3 @@
-import "server-only";
 import type { Transaction } from "sequelize";
 import { db } from "@/models";
 

@@ -34,6 +34,3 @@ export async function verifyCredentials(emailRaw: string, password: string, ip: 
   await user.update({ lastSignInAt: new Date() });
   return { ok: true, userId: user.id };
 }
-
-export const hashPassword = (pw: string) => bcrypt.hash(pw, 10);
-export const checkPassword = (pw: string, hash: string) => bcrypt.compare(pw, hash);

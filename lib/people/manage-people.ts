@@ -2,7 +2,7 @@ import "server-only";
 import { db } from "@/models";
 import { AppError } from "../errors";
 import { recordAudit, type AuditSource } from "../audit/record-audit";
-import { hashPassword } from "../auth/sign-in";
+import { hashPassword } from "../auth/passwords";
 import type { Role } from "../auth/roles";
 
 /** Everyone with their groups, for the People page. */

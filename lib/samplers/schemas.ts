@@ -23,6 +23,8 @@ export interface Ising2dParams {
   sweep?: "sequential" | "checkerboard";
   /** Start configuration: all +1 ("cold") or independent random spins ("hot"). */
   start?: "cold" | "hot";
+  /** Wolff clusters per measurement sweep; default L²/⟨cluster size⟩ from the thermalization. */
+  clusters?: number;
 }
 
 export interface OscillatorParams {
@@ -65,11 +67,18 @@ export const ising2dParamsSchema = {
       description: "Metropolis visiting order: row by row, or all even then all odd sites",
     },
     start: { enum: ["cold", "hot"], default: "cold", description: "start configuration: all +1, or random spins" },
+    clusters: {
+      type: "integer",
+      minimum: 1,
+      maximum: 1e9,
+      description: "Wolff clusters per measurement sweep (default: L²/mean cluster size measured during thermalization)",
+    },
   },
   required: ["L", "T", "algorithm"],
   additionalProperties: false,
   if: { properties: { algorithm: { const: "wolff" } }, required: ["algorithm"] },
   then: { properties: { sweep: false } },
+  else: { properties: { clusters: false } },
 } as const;
 
 /** oscillator: Euclidean lattice path integral of the harmonic oscillator (Creutz & Freedman 1981). */
@@ -144,7 +153,8 @@ export const SAMPLER_CATALOG: Record<SamplerName, SamplerInfo> = {
       { name: "m4", description: "m⁴, fourth power of the magnetisation per site" },
     ],
     sweepUnit:
-      "metropolis: L² single-spin attempts; wolff: Wolff clusters grown until at least L² spins were flipped in total",
+      "metropolis: L² single-spin attempts; wolff: while thermalizing, clusters until ≥ L² spins flipped; " +
+      "when measuring, a fixed number of clusters (params.clusters, default L²/mean cluster size)",
     extraFiles: [],
   },
   oscillator: {
