@@ -28,7 +28,11 @@ function show(v: unknown): string {
 }
 
 /** Render the first ajv error as "where: what (got …)"; `root` names the checked object. */
-export function formatAjvError(e: ErrorObject, root: string, schema?: { properties?: object }): string {
+export function formatAjvError(
+  e: ErrorObject,
+  root: string,
+  schema?: { properties?: object; if?: { properties?: Record<string, { const?: unknown }> } },
+): string {
   const where = root + e.instancePath.replace(/\//g, ".");
   const p = e.params as Record<string, unknown>;
   switch (e.keyword) {
@@ -38,8 +42,13 @@ export function formatAjvError(e: ErrorObject, root: string, schema?: { properti
     }
     case "required":
       return `${where}: missing required field "${String(p.missingProperty)}"`;
-    case "false schema":
-      return `${where}: not allowed in this combination (it applies to another algorithm/method)`;
+    case "false schema": {
+      // Our schemas only use false schemas in if/then/else on one discriminating key.
+      const [key, cond] = Object.entries(schema?.if?.properties ?? {})[0] ?? [];
+      if (!key) return `${where}: not allowed here`;
+      const when = `${key} ${show(cond?.const)}`;
+      return e.schemaPath.startsWith("#/then") ? `${where}: not allowed with ${when}` : `${where}: only allowed with ${when}`;
+    }
     case "enum":
       return `${where} must be one of ${(p.allowedValues as unknown[]).map(show).join(", ")} (got ${show(e.data)})`;
     case "const":
