@@ -34,6 +34,8 @@ export interface ExecResult {
 /** Round-trip accounting for benchmarks: every exec and every SFTP call counts once. */
 export interface ConnectionStats {
   connects: number;
+  /** Connection attempts that failed and were retried (or given up). */
+  failedConnects: number;
   execCalls: number;
   /** Logical SFTP calls (a fastGet counts once, though it pipelines several requests). */
   sftpOps: number;
@@ -54,7 +56,7 @@ class DroppedError extends ClusterError {
  * fingerprint before authentication, so on a mismatch nothing is sent.
  */
 export class SshConnection {
-  readonly stats: ConnectionStats = { connects: 0, execCalls: 0, sftpOps: 0 };
+  readonly stats: ConnectionStats = { connects: 0, failedConnects: 0, execCalls: 0, sftpOps: 0 };
   private readonly pinned: string;
   private readonly log: Logger;
   private client: Client | null = null;
@@ -95,6 +97,7 @@ export class SshConnection {
       } catch (err) {
         if (err instanceof HostKeyMismatchError || err instanceof ClusterAuthError) throw err;
         last = err;
+        this.stats.failedConnects++;
         this.log.warn({ attempt: i + 1, err: (err as Error).message }, "ssh connect failed");
       }
     }

@@ -38,9 +38,13 @@ export interface ResolvedOptions {
 
 const repoRoot = path.resolve(import.meta.dirname, "..", "..");
 
-/** The real built-in samplers CLI, run through the project's tsx. */
+/**
+ * The real built-in samplers CLI, run through the project's tsx (what node_modules/.bin/tsx
+ * points at, called through this Node so the .bin shim and PATH do not matter).
+ */
 export const DEFAULT_SAMPLER_COMMAND: readonly string[] = [
-  path.join(repoRoot, "node_modules", ".bin", "tsx"),
+  process.execPath,
+  path.join(repoRoot, "node_modules", "tsx", "dist", "cli.mjs"),
   path.join(repoRoot, "cluster-fake", "samplers", "cli.ts"),
   "{sampler}",
   "{runJson}",
