@@ -13,6 +13,8 @@ export interface FakeClusterOptions {
   slots?: number;
   /** argv template; placeholders {sampler} {runJson} {outDir} {runId} {jobId}. */
   samplerCommand?: string[];
+  /** Extra environment for sampler processes (default: where tsx finds the "@/" paths). */
+  samplerEnv?: Record<string, string>;
   /** Time between SIGTERM and SIGKILL at the wall-time limit or on cancel. */
   killGraceMs?: number;
   /** If set, only this SSH user name is accepted. */
@@ -30,6 +32,7 @@ export interface ResolvedOptions {
   workRoot: string;
   slots: number;
   samplerCommand: string[];
+  samplerEnv: Record<string, string>;
   killGraceMs: number;
   user: string | null;
   nodeName: string;
@@ -50,6 +53,14 @@ export const DEFAULT_SAMPLER_COMMAND: readonly string[] = [
   "{runJson}",
   "{outDir}",
 ];
+
+/**
+ * Samplers run with their work dir as cwd, outside the repo, so tsx would not find
+ * tsconfig.json and its "@/" path alias on its own.
+ */
+export const DEFAULT_SAMPLER_ENV: Readonly<Record<string, string>> = {
+  TSX_TSCONFIG_PATH: path.join(repoRoot, "tsconfig.json"),
+};
 
 export const DEFAULT_STATE_DIR = path.join(repoRoot, ".data", "cluster-fake");
 
@@ -83,6 +94,7 @@ export function resolveOptions(o: FakeClusterOptions = {}): ResolvedOptions {
     workRoot: path.join(stateDir, "work"),
     slots: intIn("slots", o.slots ?? 2, 1, 1024),
     samplerCommand,
+    samplerEnv: o.samplerEnv ?? { ...DEFAULT_SAMPLER_ENV },
     killGraceMs: intIn("killGraceMs", o.killGraceMs ?? 5000, 0, 600_000),
     user: o.user ?? null,
     nodeName: o.nodeName ?? "ergodex-fake-node",

@@ -22,6 +22,7 @@ export interface SchedulerOptions {
   workRoot: string;
   slots: number;
   samplerCommand: string[];
+  samplerEnv: Record<string, string>;
   killGraceMs: number;
   logger: Logger;
 }
@@ -183,7 +184,7 @@ export class RunScheduler {
     // detached: the run gets its own process group, so SIGKILL reaches grandchildren (tsx spawns one).
     const child = spawn(cmd, args, {
       cwd: dir, detached: true, stdio: ["ignore", stdout, "pipe"],
-      env: { ...process.env, ERGODEX_RUN_ID: rec.runId, ERGODEX_JOB_ID: rec.jobId, ERGODEX_CORES: String(rec.cores) },
+      env: { ...process.env, ...this.opts.samplerEnv, ERGODEX_RUN_ID: rec.runId, ERGODEX_JOB_ID: rec.jobId, ERGODEX_CORES: String(rec.cores) },
     });
     fs.closeSync(stdout);
     let resolveEnded!: () => void;
