@@ -1,6 +1,6 @@
 import { AnalysisError, assertOption, assertSeries } from "./errors";
 import { resolveCut } from "./estimate";
-import { gammaMethod } from "./gamma";
+import { gammaMethod, MIN_GAMMA_POINTS } from "./gamma";
 import { MIN_MSER_POINTS } from "./mser";
 import type { ThermalisationCut } from "./types";
 import { ANALYSIS_VERSION } from "./version";
@@ -68,7 +68,8 @@ export function jackknife(
   const rest = series.map((s) => s.subarray(cut.index));
   const available = nTotal - cut.index;
   const warnings: string[] = [];
-  const tauIntMax = Math.max(...rest.map((s) => (s.length >= 10 ? gammaMethod(s).tauInt : 0.5)));
+  if (available < MIN_GAMMA_POINTS) warnings.push(`only ${available} points after the cut: τ_int cannot be estimated and is taken as 1/2`);
+  const tauIntMax = Math.max(...rest.map((s) => (s.length >= MIN_GAMMA_POINTS ? gammaMethod(s).tauInt : 0.5)));
 
   let binSize: number;
   if (options.binSize !== undefined) {
@@ -113,7 +114,7 @@ export function jackknife(
   let ss = 0;
   for (let b = 0; b < nBins; b++) ss += (leaveOut[b] - avg) ** 2;
   const error = Math.sqrt(((nBins - 1) / nBins) * ss);
-  if (nBins < MIN_BINS && !warnings.length) warnings.push(`only ${nBins} bins: the jackknife error is itself uncertain by ≈ ${(100 / Math.sqrt(2 * (nBins - 1))).toFixed(0)}%`);
+  if (nBins < MIN_BINS && options.binSize !== undefined) warnings.push(`only ${nBins} bins: the jackknife error is itself uncertain by ≈ ${(100 / Math.sqrt(2 * (nBins - 1))).toFixed(0)}%`);
 
   return {
     analysisVersion: ANALYSIS_VERSION,

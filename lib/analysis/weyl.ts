@@ -44,17 +44,11 @@ export function weylFit(eigenvalues: Float64Array, options: WeylOptions = {}): W
   const xs: number[] = [];
   const ys: number[] = [];
   let below = 0; // nonzero eigenvalues strictly below the current one
-  let lo: number;
-  let hi: number;
-  if (options.window) {
-    const w = options.window;
+  const w = options.window;
+  if (w !== undefined) {
     if (!Array.isArray(w) || w.length !== 2) throw new AnalysisError("INVALID_OPTION", "weylFit(window): expected [lo, hi]");
     assertOption(w[0], "weylFit(window[0])", "a finite number > 0", (v) => v > 0);
     assertOption(w[1], "weylFit(window[1])", `a finite number > window[0] = ${w[0]}`, (v) => v > w[0]);
-    [lo, hi] = w;
-  } else {
-    lo = -Infinity;
-    hi = Infinity;
   }
   const nonzero = spec.size - spec.zeroModes;
   const countLo = Math.max(WEYL_DEFAULT_COUNTS.minLo, WEYL_DEFAULT_COUNTS.lo * spec.size);
@@ -65,7 +59,7 @@ export function weylFit(eigenvalues: Float64Array, options: WeylOptions = {}): W
     if (lambda === 0) continue;
     const mid = below + spec.multiplicity[j] / 2;
     below += spec.multiplicity[j];
-    const inside = options.window ? lambda >= lo && lambda <= hi : mid >= countLo && mid <= countHi;
+    const inside = w ? lambda >= w[0] && lambda <= w[1] : mid >= countLo && mid <= countHi;
     if (!inside) continue;
     xs.push(Math.log(lambda));
     ys.push(Math.log(mid));

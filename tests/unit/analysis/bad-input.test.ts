@@ -120,6 +120,11 @@ describe("bad input throws AnalysisError with what and where, never NaN", () => 
     rejects(() => A.weylFit(good, { window: [2, 1] }), "INVALID_OPTION", /window\[1\]/);
   });
 
+  it("a perfectly alternating series (summed autocovariance ≤ 0) is rejected, not given an imaginary error", () => {
+    const alt = Float64Array.from({ length: 100 }, (_, i) => (i % 2 ? 1 : -1));
+    rejects(() => A.gammaMethod(alt), "DEGENERATE", /summed autocovariance .* ≤ 0 at W = 1/);
+  });
+
   it("degenerate series: constant is reported (zero error, warning), never NaN", () => {
     const e = A.estimateSeries(new Float64Array(100).fill(3));
     expect(e.mean).toBe(3);
