@@ -45,16 +45,31 @@ function toBalance(row: Row): AllocationBalance {
   };
 }
 
+export type BalanceOptions = {
+  transaction?: Transaction;
+  /**
+   * Lock the allocation rows (SELECT … FOR UPDATE, in id order) before summing, so that no other
+   * transaction can reserve on them until this one ends: check-then-reserve cannot overspend.
+   * Needs a transaction.
+   */
+  lock?: boolean;
+};
+
 /** Balances of several allocations in one aggregate query, keyed by allocation id; unknown ids are an error. */
 export async function balancesForAllocations(
   ids: readonly string[],
-  options: { transaction?: Transaction } = {},
+  options: BalanceOptions = {},
 ): Promise<Map<string, AllocationBalance>> {
   const result = new Map<string, AllocationBalance>();
   if (ids.length === 0) return result;
   const bad = ids.find((id) => typeof id !== "string" || !UUID.test(id));
   if (bad !== undefined) throw new AppError("bad_request", `allocation id ${JSON.stringify(bad)} is not a uuid`);
+  if (options.lock && !options.transaction) throw new AppError("internal", "balancesForAllocations: lock needs a transaction");
   const { sequelize } = modelsFor(options.transaction);
+  if (options.lock) {
+    await sequelize.query("SELECT id FROM allocations WHERE id = ANY($1::uuid[]) ORDER BY id FOR UPDATE",
+      { type: QueryTypes.SELECT, bind: [[...new Set(ids)]], transaction: options.transaction });
+  }
   const rows = await sequelize.query<Row>(
     "SELECT * FROM allocation_balances WHERE allocation_id = ANY($1::uuid[])",
     { type: QueryTypes.SELECT, bind: [[...new Set(ids)]], transaction: options.transaction },
@@ -66,7 +81,7 @@ export async function balancesForAllocations(
 }
 
 /** The balance of one allocation (see the sign convention at the top of this file). */
-export async function allocationBalance(allocationId: string, options: { transaction?: Transaction } = {}): Promise<AllocationBalance> {
+export async function allocationBalance(allocationId: string, options: BalanceOptions = {}): Promise<AllocationBalance> {
   const balances = await balancesForAllocations([allocationId], options);
   return balances.get(allocationId)!;
 }

@@ -132,3 +132,21 @@ export async function transitionRun(
   };
   return options.transaction ? work(options.transaction) : sequelize.transaction(work);
 }
+
+/**
+ * Record the creation of new runs (an event from null to each run's current state), in the
+ * caller's transaction: submission and upload write runs directly in their first state.
+ */
+export async function recordRunsCreated(
+  runs: readonly Pick<RunAttributes, "id" | "state">[],
+  options: Omit<TransitionOptions, "patch" | "transaction"> & { transaction: Transaction },
+): Promise<RunEvent[]> {
+  if (typeof options?.cause !== "string" || options.cause.trim() === "") throw new AppError("bad_request", "recording new runs needs a cause");
+  const bad = runs.find((r) => !(RUN_STATES as readonly string[]).includes(r.state as string));
+  if (bad) throw new AppError("bad_request", `run ${bad.id} has unknown state "${String(bad.state)}"`);
+  const { RunEvent } = modelsFor(options.transaction);
+  return RunEvent.bulkCreate(
+    runs.map((r) => ({ runId: r.id, fromState: null, toState: r.state as RunState, cause: options.cause, detail: options.detail ?? {}, actorId: options.actorId ?? null })),
+    { transaction: options.transaction, returning: true },
+  );
+}

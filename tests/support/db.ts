@@ -5,6 +5,7 @@ import { afterAll, beforeAll } from "vitest";
 import type { Sequelize } from "sequelize";
 import { databaseUrl } from "@/lib/env";
 import { createSequelize, setSequelize } from "@/lib/db/sequelize";
+import { recordRunsCreated } from "@/lib/runs/transition-run";
 import {
   db, initModels, type Allocation, type AllocationCreationAttributes, type Cluster, type ClusterCreationAttributes, type Ensemble,
   type Group, type GroupCreationAttributes, type Models, type ParameterPoint, type Run, type Sampler, type SamplerCreationAttributes,
@@ -162,7 +163,7 @@ export async function makeEnsemble(options: {
       ensembleId: ensemble.id, pointId: p.id, replica, seed: String(1_000_003 * (p.pointIndex + 1) + replica),
       reservedCoreHours: reserve / (points.length * replicas),
     }))), { transaction, returning: true });
-    await m.RunEvent.bulkCreate(runs.map((r) => ({ runId: r.id, fromState: null, toState: "queued" as const, cause: "test.create" })), { transaction });
+    await recordRunsCreated(runs, { cause: "test.create", actorId: options.owner.id, transaction });
     if (options.allocation && reserve > 0) {
       await m.LedgerEntry.create({ allocationId: options.allocation.id, kind: "reserve", coreHours: reserve, ensembleId: ensemble.id, userId: options.owner.id }, { transaction });
     }

@@ -1,5 +1,6 @@
 // The core-hour ledger: constraints on entries, and balances recomputed from entries against hand-worked figures.
 import { beforeAll, describe, expect, it } from "vitest";
+import { QueryTypes } from "sequelize";
 import { allocationBalance, balancesForAllocations } from "@/lib/allocations/balance";
 import { makeAllocation, makeEnsemble, makeGroup, makeUser, useTestDatabase } from "../../support/db";
 import type { Allocation, Group, LedgerEntryCreationAttributes, User } from "@/models";
@@ -96,6 +97,27 @@ describe("allocation balance", () => {
     expect((await allocationBalance(a.id, { transaction: tx })).available).toBe(10);
     await tx.rollback();
     expect((await allocationBalance(a.id)).available).toBe(40);
+  });
+
+  it("with lock: true, a second check-then-reserve waits for the first and sees its reservation", async () => {
+    const a = await makeAllocation(group, 100);
+    const t1 = await t.sequelize.transaction();
+    const first = await allocationBalance(a.id, { transaction: t1, lock: true });
+    const t2 = await t.sequelize.transaction();
+    let settled = false;
+    const second = allocationBalance(a.id, { transaction: t2, lock: true }).finally(() => { settled = true; });
+    // Go on once the second read has either returned (nothing held it back) or is blocked on the row lock.
+    const blocked = async () => (await t.sequelize.query<{ n: string }>(
+      "SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'",
+      { type: QueryTypes.SELECT }))[0].n !== "0";
+    while (!settled && !(await blocked())) await new Promise((r) => setTimeout(r, 10));
+    await t.models.LedgerEntry.create({ allocationId: a.id, kind: "reserve", coreHours: 60 }, { transaction: t1 });
+    await t1.commit();
+    const seen = await second;
+    await t2.rollback();
+    expect(first.available).toBe(100);
+    expect(seen.available).toBe(40); // without the lock the second read would have seen 100: overspending
+    await expect(allocationBalance(a.id, { lock: true })).rejects.toThrow(/lock needs a transaction/);
   });
 
   it("says which allocation is unknown or malformed", async () => {

@@ -1,6 +1,7 @@
 // transitionRun: every state change writes a RunEvent in the same transaction; illegal moves are refused.
 import { beforeAll, describe, expect, it } from "vitest";
-import { canTransition, RUN_TRANSITIONS, transitionRun } from "@/lib/runs/transition-run";
+import { QueryTypes } from "sequelize";
+import { canTransition, recordRunsCreated, RUN_TRANSITIONS, transitionRun } from "@/lib/runs/transition-run";
 import { RUN_STATES, type Group, type Run, type RunState, type User } from "@/models";
 import { makeEnsemble, makeGroup, makeUser, useTestDatabase } from "../../support/db";
 
@@ -105,16 +106,35 @@ describe("transitionRun", () => {
     expect((await eventsOf(run.id)).length).toBe(1);
   });
 
-  it("serialises concurrent transitions on one run: exactly one of two racing dispatches wins", async () => {
+  it("serialises concurrent transitions on one run: a second dispatch waits for the first, then is refused", async () => {
     const run = await freshRun();
-    const results = await Promise.allSettled([
-      transitionRun(run.id, "dispatched", { cause: "broker.a", patch: { dispatchToken: "a" } }),
-      transitionRun(run.id, "dispatched", { cause: "broker.b", patch: { dispatchToken: "b" } }),
-    ]);
-    expect(results.map((r) => r.status).sort()).toEqual(["fulfilled", "rejected"]);
-    const loser = results.find((r) => r.status === "rejected") as PromiseRejectedResult;
-    expect(loser.reason).toMatchObject({ code: "conflict", message: expect.stringContaining("from dispatched to dispatched") });
-    expect((await eventsOf(run.id)).map((e) => e.toState)).toEqual(["queued", "dispatched"]);
+    const t1 = await t.sequelize.transaction();
+    await transitionRun(run.id, "dispatched", { cause: "broker.a", transaction: t1, patch: { dispatchToken: "a" } });
+    const t2 = await t.sequelize.transaction();
+    let settled = false;
+    const second = transitionRun(run.id, "dispatched", { cause: "broker.b", transaction: t2, patch: { dispatchToken: "b" } })
+      .then(() => "accepted", (err: { code?: string }) => err.code ?? String(err))
+      .finally(() => { settled = true; });
+    // Go on once the second call has either finished (nothing held it back) or is blocked on the row lock.
+    const blocked = async () => (await t.sequelize.query<{ n: string }>(
+      "SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'",
+      { type: QueryTypes.SELECT }))[0].n !== "0";
+    while (!settled && !(await blocked())) await new Promise((r) => setTimeout(r, 10));
+    await t1.commit();
+    expect(await second).toBe("conflict"); // it read the run only after the first committed: state dispatched
+    await t2.rollback();
+    expect((await eventsOf(run.id)).map((e) => e.cause)).toEqual(["test.create", "broker.a"]);
+    expect((await t.models.Run.findByPk(run.id))!.dispatchToken).toBe("a");
+  });
+
+  it("records the creation of runs written directly in a later state (an uploaded run)", async () => {
+    const { ensemble, points } = await makeEnsemble({ owner, group, points: [{ L: 4, T: 3 }], replicas: 0, cluster: null });
+    const events = await t.sequelize.transaction(async (transaction) => {
+      const run = await t.models.Run.create({ ensembleId: ensemble.id, pointId: points[0].id, replica: 0, seed: "7", source: "upload", state: "collecting" }, { transaction });
+      return recordRunsCreated([run], { cause: "upload.accepted", actorId: owner.id, transaction });
+    });
+    expect(events.map((e) => [e.fromState, e.toState, e.cause, e.actorId])).toEqual([[null, "collecting", "upload.accepted", owner.id]]);
+    await expect(transitionRun(events[0].runId, "done", { cause: "import.accepted" })).resolves.toBeTruthy();
   });
 
   it("says what is wrong with bad input", async () => {
