@@ -85,3 +85,29 @@ export async function allocationBalance(allocationId: string, options: BalanceOp
   const balances = await balancesForAllocations([allocationId], options);
   return balances.get(allocationId)!;
 }
+
+/** One person's use of an allocation: what they hold in reservations and what was charged to them. */
+export type PersonUsage = { reserved: number; charged: number; released: number; held: number; used: number };
+
+/**
+ * Per-person figures of one allocation, keyed by userId (entries without a user are left out),
+ * for per-person caps: `used` = charged + held, i.e. spent plus still set aside.
+ */
+export async function usageByPerson(allocationId: string, options: { transaction?: Transaction } = {}): Promise<Map<string, PersonUsage>> {
+  if (typeof allocationId !== "string" || !UUID.test(allocationId)) throw new AppError("bad_request", `allocation id ${JSON.stringify(allocationId)} is not a uuid`);
+  const { sequelize } = modelsFor(options.transaction);
+  const rows = await sequelize.query<{ user_id: string; reserved: string; charged: string; released: string }>(
+    `SELECT user_id,
+       coalesce(sum(core_hours) FILTER (WHERE kind = 'reserve'), 0) AS reserved,
+       coalesce(sum(core_hours) FILTER (WHERE kind = 'charge'), 0) AS charged,
+       coalesce(sum(core_hours) FILTER (WHERE kind = 'release'), 0) AS released
+     FROM ledger_entries WHERE allocation_id = $1 AND user_id IS NOT NULL GROUP BY user_id`,
+    { type: QueryTypes.SELECT, bind: [allocationId], transaction: options.transaction },
+  );
+  const round = (x: number) => Math.round(x * 1e4) / 1e4;
+  return new Map(rows.map((r) => {
+    const [reserved, charged, released] = [r.reserved, r.charged, r.released].map(Number);
+    const held = round(reserved - released - charged);
+    return [r.user_id, { reserved, charged, released, held, used: round(charged + held) }];
+  }));
+}

@@ -1,7 +1,7 @@
 // The core-hour ledger: constraints on entries, and balances recomputed from entries against hand-worked figures.
 import { beforeAll, describe, expect, it } from "vitest";
 import { QueryTypes } from "sequelize";
-import { allocationBalance, balancesForAllocations } from "@/lib/allocations/balance";
+import { allocationBalance, balancesForAllocations, usageByPerson } from "@/lib/allocations/balance";
 import { makeAllocation, makeEnsemble, makeGroup, makeUser, useTestDatabase } from "../../support/db";
 import type { Allocation, Group, LedgerEntryCreationAttributes, User } from "@/models";
 import { refusal, SQLSTATE } from "./pg-error";
@@ -118,6 +118,22 @@ describe("allocation balance", () => {
     expect(first.available).toBe(100);
     expect(seen.available).toBe(40); // without the lock the second read would have seen 100: overspending
     await expect(allocationBalance(a.id, { lock: true })).rejects.toThrow(/lock needs a transaction/);
+  });
+
+  it("splits use per person: charged plus still held, grants (no user) left out", async () => {
+    const a = await makeAllocation(group, 1000);
+    const other = await makeUser("researcher", group);
+    const add = (userId: string, kind: LedgerEntryCreationAttributes["kind"], coreHours: number) =>
+      t.models.LedgerEntry.create({ allocationId: a.id, kind, coreHours, userId });
+    await add(user.id, "reserve", 100);
+    await add(user.id, "charge", 70);
+    await add(user.id, "release", 30); // settled: used 70
+    await add(other.id, "reserve", 50);
+    await add(other.id, "charge", 12.5); // 37.5 still held: used 50
+    const m = await usageByPerson(a.id);
+    expect([...m.keys()].sort()).toEqual([user.id, other.id].sort());
+    expect(m.get(user.id)).toEqual({ reserved: 100, charged: 70, released: 30, held: 0, used: 70 });
+    expect(m.get(other.id)).toEqual({ reserved: 50, charged: 12.5, released: 0, held: 37.5, used: 50 });
   });
 
   it("says which allocation is unknown or malformed", async () => {
