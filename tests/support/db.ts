@@ -74,8 +74,11 @@ export function useTestDatabase(): TestDatabase {
   afterAll(async () => {
     if (!handle.sequelize) return;
     setSequelize(previous);
-    await handle.sequelize.close();
-    await dropDatabase(handle.name);
+    try {
+      await handle.sequelize.close();
+    } finally {
+      await dropDatabase(handle.name); // WITH (FORCE): even if a failed test left a connection open
+    }
   });
   return handle;
 }
