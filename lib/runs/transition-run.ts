@@ -55,7 +55,10 @@ export type TransitionOptions = {
 const PER_ATTEMPT = ["dispatchToken", "schedulerJobId", "workDir", "dispatchedAt", "startedAt", "finishedAt",
   "exitCode", "failureReason", "failureDetail", "stderrTail", "coreHoursUsed", "samplerCommit", "host"] as const;
 
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
 function checkInput(runId: string, toState: RunState, options: TransitionOptions): void {
+  if (typeof runId !== "string" || !UUID.test(runId)) throw new AppError("bad_request", `run id ${JSON.stringify(runId)} is not a uuid`);
   if (!(RUN_STATES as readonly string[]).includes(toState)) {
     throw new AppError("bad_request", `run state "${String(toState)}" is not one of ${RUN_STATES.join(", ")}`);
   }

@@ -143,5 +143,6 @@ describe("transitionRun", () => {
     await expect(transitionRun(run.id, "dispatched", { cause: " " })).rejects.toMatchObject({ code: "bad_request", message: expect.stringContaining("needs a cause") });
     await expect(transitionRun(run.id, "dispatched", { cause: "x", patch: { progress: Number.NaN } })).rejects.toMatchObject({ code: "bad_request" });
     await expect(transitionRun("00000000-0000-4000-8000-000000000000", "dispatched", { cause: "x" })).rejects.toMatchObject({ code: "not_found" });
+    await expect(transitionRun("run-1", "dispatched", { cause: "x" })).rejects.toMatchObject({ code: "bad_request", message: expect.stringContaining('"run-1"') });
   });
 });
