@@ -2,7 +2,8 @@ import fs from "node:fs";
 import path from "node:path";
 import { spawn, type ChildProcess } from "node:child_process";
 import type { Logger } from "pino";
-import { StateStore, TERMINAL_STATES, type Progress, type RunRecord } from "./state-store.js";
+import { StateStore, TERMINAL_STATES, type RunRecord } from "./state-store.js";
+import { readProgress, readSamplerName } from "./run-files.js";
 
 /** One run in a submit request. */
 export interface SubmitItem {
@@ -255,35 +256,4 @@ function signalGroup(child: ChildProcess, sig: NodeJS.Signals): void {
   } catch {
     // The group is already gone; the close handler records the end.
   }
-}
-
-function readSamplerName(file: string): string {
-  let json: { sampler?: { name?: unknown } };
-  try {
-    json = JSON.parse(fs.readFileSync(file, "utf8"));
-  } catch (err) {
-    const e = err as NodeJS.ErrnoException;
-    throw new Error(e.code === "ENOENT" ? `no run.json staged at ${path.basename(path.dirname(file))}/run.json`
-      : `run.json is not valid JSON: ${e.message}`);
-  }
-  const name = json?.sampler?.name;
-  if (typeof name !== "string" || !/^[a-z0-9][a-z0-9_-]{0,63}$/.test(name)) {
-    throw new Error("run.json: sampler.name must be a lower-case sampler name");
-  }
-  return name;
-}
-
-/** Progress written since `sinceMs`; an older file belongs to a previous attempt. */
-function readProgress(file: string, sinceMs: number): Progress | null {
-  try {
-    // 1 s slack: some file systems store mtime in whole seconds.
-    if (fs.statSync(file).mtimeMs < sinceMs - 1000) return null;
-    const p = JSON.parse(fs.readFileSync(file, "utf8")) as Progress;
-    if (Number.isFinite(p.sweepsDone) && Number.isFinite(p.sweepsTotal)) {
-      return { sweepsDone: p.sweepsDone, sweepsTotal: p.sweepsTotal, updatedAt: String(p.updatedAt) };
-    }
-  } catch {
-    // Missing or mid-rewrite: no new information.
-  }
-  return null;
 }
