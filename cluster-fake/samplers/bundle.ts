@@ -4,7 +4,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { SAMPLER_CATALOG, type SamplerName } from "@/lib/samplers/schemas";
+import { SAMPLER_CATALOG, type SamplerName } from "../../lib/samplers/schemas";
 import type { Encoding } from "./series-writer";
 
 const here = path.dirname(fileURLToPath(import.meta.url));

@@ -1,9 +1,11 @@
 /** The sampler command line as a function (cli.ts is the process wrapper; see there for usage and exit codes). */
 import fs from "node:fs";
-import { SAMPLER_NAMES, SAMPLER_VERSIONS } from "@/lib/samplers/schemas";
-import { isSamplerName, validateParams, validateRunInput } from "@/lib/samplers/validate";
-import { driveRun, type StopFlag } from "./driver";
+import { Worker } from "node:worker_threads";
+import { SAMPLER_NAMES, SAMPLER_VERSIONS } from "../../lib/samplers/schemas";
+import { isSamplerName, validateParams, validateRunInput } from "../../lib/samplers/validate";
+import type { DriveResult } from "./driver";
 import { BadInputError, EXIT } from "./errors";
+import type { WorkerInput, WorkerReply } from "./worker";
 
 const USAGE = `usage: sampler <name> <run.json> <outdir> (name: ${SAMPLER_NAMES.join(", ")})`;
 
@@ -68,20 +70,21 @@ async function main(argv: string[]): Promise<CliOutcome> {
     throw new BadInputError(`cannot create outdir ${outdir}: ${(err as NodeJS.ErrnoException).code}`);
   }
 
-  const stop: StopFlag = { requested: false };
+  // The chain runs in a worker thread (see worker.ts); signals only raise a shared flag.
+  const flag = new Int32Array(new SharedArrayBuffer(4));
   let signalName = "";
   const onSignal = (sig: NodeJS.Signals) => {
-    stop.requested = true;
     signalName = sig;
+    Atomics.store(flag, 0, 1);
   };
   process.on("SIGTERM", onSignal);
   process.on("SIGINT", onSignal);
   try {
-    const result = await driveRun({ run, sampler: name, params: params.value, outdir, stop });
+    const result = await runInWorker({ options: { run, sampler: name, params: params.value, outdir }, flag });
     if (result.status === "interrupted") {
       return {
         code: EXIT.interrupted,
-        message: `interrupted by ${signalName} after ${result.sweepsDone} sweeps; checkpoint written to ${outdir}/checkpoint.json (rerun to resume)`,
+        message: `interrupted by ${signalName || "a stop request"} after ${result.sweepsDone} sweeps; checkpoint written to ${outdir}/checkpoint.json (rerun to resume)`,
       };
     }
     return { code: EXIT.ok, message: "" };
@@ -89,4 +92,16 @@ async function main(argv: string[]): Promise<CliOutcome> {
     process.off("SIGTERM", onSignal);
     process.off("SIGINT", onSignal);
   }
+}
+
+function runInWorker(input: WorkerInput): Promise<DriveResult> {
+  return new Promise((resolve, reject) => {
+    const worker = new Worker(new URL("./worker-entry.mjs", import.meta.url), { workerData: input });
+    worker.once("message", (reply: WorkerReply) => {
+      if (reply.ok) resolve(reply.result);
+      else reject(reply.badInput ? new BadInputError(reply.message) : new Error(reply.message));
+    });
+    worker.once("error", reject);
+    worker.once("exit", (code) => reject(new Error(`sampler worker exited with code ${code} before reporting`)));
+  });
 }

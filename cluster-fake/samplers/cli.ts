@@ -8,6 +8,10 @@
  * sampler, unreadable/invalid run.json, unknown or out-of-range parameter, foreign
  * checkpoint); 3 interrupted by SIGTERM/SIGINT with checkpoint.json written — run the same
  * command again to resume. Every failure prints exactly one line on stderr.
+ *
+ * The sampler files import each other by relative paths (not "@/"), so the CLI also runs
+ * when started from a directory other than the repository root. The chain itself runs in
+ * a worker thread (worker.ts) so that signals are taken up at once.
  */
 import { runCli } from "./cli-main";
 

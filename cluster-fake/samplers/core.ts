@@ -1,5 +1,5 @@
 /** The interface every built-in sampler core implements; the driver does the rest. */
-import type { Rng } from "@/lib/samplers/rng";
+import type { Rng } from "../../lib/samplers/rng";
 
 /** A file the sampler adds to the result bundle beside the series. */
 export interface ExtraFile {

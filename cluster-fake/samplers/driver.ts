@@ -5,9 +5,9 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import { createRng, rngFromState } from "@/lib/samplers/rng";
-import { SAMPLER_VERSIONS, type SamplerName } from "@/lib/samplers/schemas";
-import type { RunInput } from "@/lib/samplers/validate";
+import { createRng, rngFromState } from "../../lib/samplers/rng";
+import { SAMPLER_VERSIONS, type SamplerName } from "../../lib/samplers/schemas";
+import type { RunInput } from "../../lib/samplers/validate";
 import { hashPrefix, writeJsonAtomic, writeManifest } from "./bundle";
 import { readCheckpoint, removeCheckpoint, writeCheckpoint, type RunIdentity } from "./checkpoint";
 import { CORE_FACTORIES } from "./registry";

@@ -13,8 +13,8 @@
  * The start configuration is params.start ("cold": all +1, "hot": random), recorded in the
  * manifest's params.
  */
-import type { Ising2dParams } from "@/lib/samplers/schemas";
-import type { Rng } from "@/lib/samplers/rng";
+import type { Ising2dParams } from "../../lib/samplers/schemas";
+import type { Rng } from "../../lib/samplers/rng";
 import { decodeTyped, encodeTyped, type CoreFactory, type SamplerCore } from "./core";
 
 const TWO32 = 4294967296;

@@ -9,8 +9,8 @@
  *   eigenvalues have exactly the density above; eigenvalues by implicit QR.
  * The final spectrum (ascending) goes to spectrum.csv.
  */
-import type { LoggasParams } from "@/lib/samplers/schemas";
-import { uniform01 } from "@/lib/samplers/rng";
+import type { LoggasParams } from "../../lib/samplers/schemas";
+import { uniform01 } from "../../lib/samplers/rng";
 import { decodeTyped, encodeTyped, type CoreFactory, type SamplerCore } from "./core";
 import { chi, normal } from "./variates";
 import { tridiagEigenvalues } from "./tridiag-eigen";

@@ -7,8 +7,8 @@
  * acceptance = accepted / attempted proposals over the sweeps since the previous
  * measurement (since the start for the first one).
  */
-import type { OscillatorParams } from "@/lib/samplers/schemas";
-import { uniform01 } from "@/lib/samplers/rng";
+import type { OscillatorParams } from "../../lib/samplers/schemas";
+import { uniform01 } from "../../lib/samplers/rng";
 import { decodeTyped, encodeTyped, type CoreFactory } from "./core";
 
 const TWO32 = 4294967296;

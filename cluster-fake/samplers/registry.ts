@@ -1,5 +1,5 @@
 /** Built-in sampler name -> core factory. */
-import type { SamplerName } from "@/lib/samplers/schemas";
+import type { SamplerName } from "../../lib/samplers/schemas";
 import type { CoreFactory } from "./core";
 import { createIsing2d } from "./ising2d";
 import { createLoggas } from "./loggas";

@@ -3,7 +3,7 @@
  * uniform distributions. Each keeps no hidden state (no cached second normal), so a
  * checkpoint needs nothing beyond the generator's own state.
  */
-import { uniform01, type Rng } from "@/lib/samplers/rng";
+import { uniform01, type Rng } from "../../lib/samplers/rng";
 
 /** Standard normal by the Box–Muller transform (Box & Muller 1958); the second variate is discarded. */
 export function normal(rng: Rng): number {

@@ -30,17 +30,25 @@ async function drive(sampler: SamplerName, raw: object, outdir: string, stop: St
   return driveRun({ run: run.value as RunInput, sampler, params: params.value, outdir, stop });
 }
 
-const cases: { sampler: SamplerName; params: object; extra: object; stops: number[]; files: string[] }[] = [
+interface Case {
+  sampler: SamplerName;
+  params: Record<string, unknown>;
+  extra: Record<string, unknown>;
+  stops: number[];
+  files?: string[];
+}
+
+const cases = ([
   { sampler: "ising2d", params: { L: 12, T: 2.4, algorithm: "metropolis", sweep: "checkerboard", start: "hot" }, extra: { thermalization: 30, measurements: 40, interval: 3 }, stops: [10, 37], files: ["series.csv"] },
   { sampler: "ising2d", params: { L: 12, T: 2.4, algorithm: "wolff" }, extra: { thermalization: 20, measurements: 30, interval: 1 }, stops: [7, 18] },
   { sampler: "oscillator", params: { N: 16, a: 0.5, m: 1, omega: 1, step: 1, hits: 2 }, extra: { thermalization: 40, measurements: 20, interval: 4 }, stops: [25, 26, 23] },
   { sampler: "loggas", params: { N: 6, beta: 2, method: "metropolis" }, extra: { thermalization: 10, measurements: 30, interval: 2 }, stops: [5, 28], files: ["series.csv", "spectrum.csv"] },
   { sampler: "loggas", params: { N: 6, beta: 1, method: "tridiagonal" }, extra: { thermalization: 0, measurements: 20, interval: 1, encoding: "f64le" }, stops: [3], files: ["series.f64le", "spectrum.csv"] },
-].map((c) => ({ files: ["series.csv"], ...c }));
+] satisfies Case[]).map((c: Case) => ({ ...c, files: c.files ?? ["series.csv"] }));
 
 describe("checkpoint/resume in-process", () => {
   it.each(cases)("$sampler $params.algorithm$params.method: interrupted at $stops sweeps", async (c) => {
-    const raw = runJson(c.sampler, c.params as Record<string, unknown>, c.extra);
+    const raw = runJson(c.sampler, c.params, c.extra);
     const dir = tmpDir("resume");
     const ref = path.join(dir, "ref");
     const cut = path.join(dir, "cut");
