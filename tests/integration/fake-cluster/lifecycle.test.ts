@@ -101,6 +101,8 @@ describe("fake cluster over SSH: stage, submit, status, fetch", () => {
     const before = adapter.connection.roundTrips;
     await adapter.status(["run-a", "run-b", "run-fail", "no-such-run"]);
     expect(adapter.connection.roundTrips - before).toBe(1);
+    // Everything so far went over one connection and one SFTP session.
     expect(adapter.connection.stats.connects).toBe(1);
+    expect(node.stats.sftpSessions).toBe(1);
   });
 });
