@@ -19,6 +19,8 @@ const ID = /^[A-Za-z0-9][A-Za-z0-9._-]{0,127}$/;
 const TOKEN = /^[A-Za-z0-9][A-Za-z0-9._:-]{0,127}$/;
 /** Run ids per report/cancel command line; keeps one exec request well under SSH packet limits. */
 const IDS_PER_CALL = 400;
+/** Runs per submit request; the node accepts up to 10 000, stdin has no packet limit. */
+const RUNS_PER_SUBMIT = 2000;
 
 function checkId(runId: string, where: string): void {
   if (!ID.test(runId)) throw new ClusterError(`${where}: invalid run id "${runId}" (expected ${ID.source})`, "bad_request", false);
@@ -70,16 +72,20 @@ export class FakeClusterAdapter implements ClusterAdapter {
         throw new ClusterError(`submit: run ${r.runId} has an invalid dispatch token`, "bad_request", false);
       }
     }
-    const stdin = JSON.stringify({
-      runs: runs.map((r) => ({
-        runId: r.runId, token: r.dispatchToken,
-        wallSeconds: r.resources.wallSeconds, cores: r.resources.cores, memoryMb: r.resources.memoryMb,
-      })),
-    });
-    const body = checkSubmit(await this.connection.execJson(`${NODE_COMMAND} submit`, { stdin, idempotent: true }));
-    return body.results.map((x): SubmitResult => (x.ok
-      ? { runId: x.runId, accepted: true, jobId: x.run.jobId, alreadySubmitted: !x.created, state: x.run.state }
-      : { runId: x.runId, accepted: false, error: x.error }));
+    const out: SubmitResult[] = [];
+    for (const batch of chunks(runs, RUNS_PER_SUBMIT)) {
+      const stdin = JSON.stringify({
+        runs: batch.map((r) => ({
+          runId: r.runId, token: r.dispatchToken,
+          wallSeconds: r.resources.wallSeconds, cores: r.resources.cores, memoryMb: r.resources.memoryMb,
+        })),
+      });
+      const body = checkSubmit(await this.connection.execJson(`${NODE_COMMAND} submit`, { stdin, idempotent: true }));
+      out.push(...body.results.map((x): SubmitResult => (x.ok
+        ? { runId: x.runId, accepted: true, jobId: x.run.jobId, alreadySubmitted: !x.created, state: x.run.state }
+        : { runId: x.runId, accepted: false, error: x.error })));
+    }
+    return out;
   }
 
   async status(runIds?: string[]): Promise<RunStatus[]> {
