@@ -59,7 +59,7 @@ let cachedSourceHash: string | undefined;
 
 /**
  * The manifest's sampler.commit: a content hash of the sampler sources
- * (cluster-fake/samplers/*.ts and lib/samplers/*.ts, sorted by path), so it is the same on
+ * (cluster-fake/samplers/*.{ts,mjs} and lib/samplers/*.ts, sorted by path), so it is the same on
  * every checkout of the same code and needs no git on the cluster: "sha256:<hex>".
  */
 export function samplerSourceHash(): string {
@@ -68,7 +68,7 @@ export function samplerSourceHash(): string {
   const files = ["cluster-fake/samplers", "lib/samplers"].flatMap((dir) =>
     fs
       .readdirSync(path.join(repoRoot, dir))
-      .filter((f) => f.endsWith(".ts"))
+      .filter((f) => f.endsWith(".ts") || f.endsWith(".mjs"))
       .map((f) => `${dir}/${f}`),
   );
   for (const rel of files.sort()) {
