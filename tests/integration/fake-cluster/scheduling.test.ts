@@ -11,9 +11,9 @@ describe("fake cluster scheduling: slots, FIFO, wall time, cancel", () => {
   let node: FakeCluster | undefined;
   let adapter: FakeClusterAdapter | undefined;
 
-  async function setup(slots: number) {
+  async function setup(slots: number, samplerCommand?: string[]) {
     dir = makeStateDir();
-    node = await startNode(dir.stateDir, { slots, killGraceMs: 500 });
+    node = await startNode(dir.stateDir, { slots, killGraceMs: 500, ...(samplerCommand ? { samplerCommand } : {}) });
     adapter = adapterFor(node, dir.clientKey);
     return { d: dir, n: node, a: adapter };
   }
@@ -96,6 +96,17 @@ describe("fake cluster scheduling: slots, FIFO, wall time, cancel", () => {
     const [s] = await waitForStatus(a, ["deaf"], ([x]) => TERMINAL.has(x.state));
     expect(s).toMatchObject({ state: "cancelled", signal: "SIGKILL" });
     expect(a.connection.stats.connects).toBe(1);
+  });
+
+  it("reports a sampler command that cannot be started as launch_failed and moves on", async () => {
+    const { a } = await setup(1, ["/nonexistent/sampler-binary", "{runJson}"]);
+    await a.stage(["x1", "x2"].map((id) => ({ runId: id, runJson: runJson(id) })));
+    await a.submit(["x1", "x2"].map((id) => ({ runId: id, dispatchToken: "t", resources: RES })));
+    const list = await waitForStatus(a, ["x1", "x2"], (l) => l.every((x) => TERMINAL.has(x.state)));
+    for (const x of list) {
+      expect(x).toMatchObject({ state: "exited", exitCode: null, signal: null, failure: { reason: "launch_failed" } });
+      expect(x.failure!.detail).toMatch(/ENOENT/);
+    }
   });
 
   it("cancels a queued run (it never starts) and a running one (terminated, slot freed)", async () => {
