@@ -4,10 +4,11 @@
  * metropolis: single-spin Metropolis (Metropolis et al. 1953); one sweep = L² attempts,
  *   visiting sites row by row ("sequential") or all even then all odd sites ("checkerboard").
  * wolff: Wolff (1989) single-cluster update, bond probability p = 1 − exp(−2/T).
- *   During thermalization one sweep = clusters grown until at least L² spins were flipped
- *   in total (a sweep-equivalent). From the first measurement sweep on, one sweep = a FIXED
- *   number of clusters n_c = params.clusters, or by default round(L²/⟨cluster size⟩) with
- *   the mean measured over the thermalization (1 if thermalization is 0). The count must be
+ *   With params.clusters given, one sweep = that many clusters throughout. Without it,
+ *   during thermalization one sweep = clusters grown until at least L² spins were flipped
+ *   in total (a sweep-equivalent), and from the first measurement sweep on one sweep = a
+ *   FIXED number of clusters round(L²/⟨cluster size⟩), the mean measured over the
+ *   thermalization (1 cluster if thermalization is 0). The count must be
  *   fixed: stopping on "≥ L² spins flipped" picks measurement times that depend on the
  *   cluster sizes just drawn and biases the measured distribution (seen at 4×4, T=1.5).
  * The start configuration is params.start ("cold": all +1, "hot": random), recorded in the
