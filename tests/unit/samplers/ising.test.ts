@@ -15,11 +15,12 @@ const variants = [
   { algorithm: "metropolis", sweep: "sequential" },
   { algorithm: "metropolis", sweep: "checkerboard" },
   { algorithm: "wolff" },
+  { algorithm: "wolff", clusters: 3 },
 ] as const;
 
 describe("ising2d 4×4 vs exact enumeration of all 2^16 states", () => {
   for (const v of variants) {
-    it.each([1.5, TC, 3.5])(`${v.algorithm}${"sweep" in v ? "/" + v.sweep : ""} at T=%f: e, |m|, m²`, (T) => {
+    it.each([1.5, TC, 3.5])(`${v.algorithm}${"sweep" in v ? "/" + v.sweep : ""}${"clusters" in v ? `/${v.clusters} clusters` : ""} at T=%f: e, |m|, m²`, (T) => {
       const exact = enumerate4x4(T);
       const start = T > 3 ? "hot" : "cold";
       const s = runCore("ising2d", { L: 4, T, start, ...v }, { seed: "401", thermalization: 1000, measurements: 100_000 });

@@ -85,7 +85,7 @@ describe("checkpoint/resume in-process", () => {
 
 describe("SIGTERM to the CLI", () => {
   it("exits 3 with a checkpoint; rerun resumes to a byte-identical series", async () => {
-    const raw = runJson("ising2d", { L: 64, T: 2.3, algorithm: "metropolis" }, { thermalization: 1000, measurements: 40_000 });
+    const raw = runJson("ising2d", { L: 64, T: 2.3, algorithm: "metropolis" }, { thermalization: 1000, measurements: 60_000 });
     const dir = tmpDir("sigterm");
     const runFile = writeRunJson(dir, raw);
     const ref = spawnCli(["ising2d", runFile, path.join(dir, "ref")]);
