@@ -6,7 +6,6 @@ import path from "node:path";
 export default defineConfig({
   resolve: { alias: { "@": path.resolve(import.meta.dirname) } },
   test: {
-    include: ["tests/**/*.test.ts"],
     environment: "node",
     testTimeout: 60_000,
     hookTimeout: 120_000,

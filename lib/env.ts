@@ -24,6 +24,7 @@ function secret(name: string, envName: string): string {
   try {
     return fs.readFileSync(file, "utf8").trim();
   } catch {
+    fs.mkdirSync(dataDir, { recursive: true }); // stays traversable: PostgreSQL runs as another user below it
     fs.mkdirSync(path.dirname(file), { recursive: true, mode: 0o700 });
     const value = crypto.randomBytes(32).toString("base64url");
     try {

@@ -5,4 +5,4 @@ ensure_postgres
 ensure_node_modules
 ensure_build
 pg_init "${ERGODEX_PG_DATA:-${ERGODEX_DATA_DIR:-.data}/pg}"
-exec node node_modules/tsx/dist/cli.mjs scripts/supervisor.ts
+exec node --conditions=react-server --import tsx scripts/supervisor.ts

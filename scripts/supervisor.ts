@@ -7,6 +7,10 @@ import path from "node:path";
 import { env } from "../lib/env";
 import { pgServerCommand, waitForPostgres, provisionDatabase } from "./lib/postgres";
 
+// Node-side processes load TypeScript in-process with tsx, under the "react-server" export condition so that
+// lib/ modules marked `import "server-only"` (never to reach a browser bundle) load on the server as they do in Next.
+const NODE_TS = ["--conditions=react-server", "--import", "tsx"];
+
 type Service = { name: string; color: number; cmd: string; args: string[]; uid?: number; gid?: number; extraEnv?: Record<string, string>; stopSignal?: NodeJS.Signals; ready?: () => Promise<void> };
 
 const runDir = path.join(env.dataDir, "run");
@@ -48,7 +52,7 @@ async function start(s: Service): Promise<void> {
 /** One-shot step (migrate, seed) that must succeed before the services start. */
 function task(name: string, args: string[]): Promise<void> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [path.join(env.root, "node_modules/tsx/dist/cli.mjs"), ...args], { cwd: env.root, stdio: ["ignore", "pipe", "pipe"] });
+    const child = spawn(process.execPath, [...NODE_TS, ...args], { cwd: env.root, stdio: ["ignore", "pipe", "pipe"] });
     child.stdout!.on("data", (c: Buffer) => prefix(name, 36, c, process.stdout));
     child.stderr!.on("data", (c: Buffer) => prefix(name, 36, c, process.stderr));
     child.on("exit", (code) => (code === 0 ? resolve() : reject(new Error(`${name} failed with exit code ${code}`))));
@@ -92,17 +96,16 @@ async function main() {
   await provisionDatabase();
   await task("migrate", ["scripts/migrate.ts", "up"]);
   await task("seed", ["scripts/seed.ts"]);
-  const tsx = path.join(env.root, "node_modules/tsx/dist/cli.mjs");
   const optional: Service[] = [
-    { name: "cluster", color: 33, cmd: process.execPath, args: [tsx, "cluster-fake/index.ts"], extraEnv: { ERGODEX_CLUSTER_STATE_DIR: env.cluster.stateDir } },
-    { name: "smtp", color: 32, cmd: process.execPath, args: [tsx, "scripts/fake-smtp.ts"] },
-    { name: "broker", color: 34, cmd: process.execPath, args: [tsx, "broker/index.ts"] },
-  ].filter((s) => fs.existsSync(path.join(env.root, s.args[1])));
+    { name: "cluster", color: 33, cmd: process.execPath, args: [...NODE_TS, "cluster-fake/index.ts"], extraEnv: { ERGODEX_CLUSTER_STATE_DIR: env.cluster.stateDir } },
+    { name: "smtp", color: 32, cmd: process.execPath, args: [...NODE_TS, "scripts/fake-smtp.ts"] },
+    { name: "broker", color: 34, cmd: process.execPath, args: [...NODE_TS, "broker/index.ts"] },
+  ].filter((s) => fs.existsSync(path.join(env.root, s.args[NODE_TS.length])));
   for (const s of optional) await start(s);
   await start({
     name: "web", color: 92, cmd: process.execPath,
     args: [path.join(env.root, "node_modules/next/dist/bin/next"), "start", "-H", env.web.host, "-p", String(env.web.port)],
-    extraEnv: { NEXT_TELEMETRY_DISABLED: "1", NODE_ENV: "production" },
+    extraEnv: { NEXT_TELEMETRY_DISABLED: "1", NODE_ENV: "production", NEXTAUTH_URL: env.appUrl },
     ready: () => waitHttp(`${env.appUrl}/api/health`),
   });
   say(`Ergodex is ready at ${env.appUrl}  (Ctrl-C or \`npm stop\` stops it)`);

@@ -9,4 +9,4 @@ await c.connect();
 const exists = await c.query("select 1 from pg_database where datname = $1", [name]);
 if (exists.rowCount === 0) await c.query(`create database "${name}"`);
 await c.end();
-execFileSync(process.execPath, ["node_modules/tsx/dist/cli.mjs", "scripts/migrate.ts", "up", "--db", name], { stdio: "inherit", cwd: env.root });
+execFileSync(process.execPath, ["--conditions=react-server", "--import", "tsx", "scripts/migrate.ts", "up", "--db", name], { stdio: "inherit", cwd: env.root });

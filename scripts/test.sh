@@ -25,7 +25,7 @@ rm -rf "$ERGODEX_DATA_DIR"; mkdir -p "$ERGODEX_DATA_DIR" test-output
 pg_init "$ERGODEX_DATA_DIR/pg"
 
 log "starting the test stack (log: test-output/stack.log)"
-node node_modules/tsx/dist/cli.mjs scripts/supervisor.ts > test-output/stack.log 2>&1 &
+node --conditions=react-server --import tsx scripts/supervisor.ts > test-output/stack.log 2>&1 &
 stack=$!
 cleanup() { kill -TERM "$stack" 2>/dev/null; wait "$stack" 2>/dev/null; }
 trap cleanup EXIT
@@ -35,7 +35,7 @@ for _ in $(seq 1 240); do
   sleep 0.5
 done
 if grep -q "Ergodex is ready" test-output/stack.log; then log "test stack is up"; else log "test stack did not come up; see test-output/stack.log"; tail -30 test-output/stack.log; fi
-node node_modules/tsx/dist/cli.mjs scripts/test-prepare.ts || log "template database could not be prepared"
+node --conditions=react-server --import tsx scripts/test-prepare.ts || log "template database could not be prepared"
 
 set +e
 npx vitest run --reporter=default --reporter=json --outputFile.json=test-output/vitest.json "$@"

@@ -27,7 +27,7 @@ export function SignInForm() {
     <form onSubmit={submit} className="space-y-4 rounded-lg border border-line bg-paper-raised p-5">
       <Field label="E-mail"><input name="email" type="email" autoComplete="username" required className={inputClass} /></Field>
       <Field label="Password"><input name="password" type="password" autoComplete="current-password" required className={inputClass} /></Field>
-      {error ? <p role="alert" className="text-sm text-danger">{error}</p> : null}
+      {error ? <p role="alert" data-testid="sign-in-error" className="text-sm text-danger">{error}</p> : null}
       <Button type="submit" disabled={busy} className="w-full justify-center">{busy ? "Signing in…" : "Sign in"}</Button>
     </form>
   );

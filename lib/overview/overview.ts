@@ -18,24 +18,24 @@ export async function overviewFor(who: Identity) {
   ]);
   const groupName = new Map(groupRows.map((g) => [g.id, g.name]));
   const balances = await balancesForAllocations(allocations.map((a) => a.id));
-  const groupFilter = groups === null ? "" : "where e.group_id = any(:groups::uuid[])";
-  const replacements = { groups: groups ?? [] };
+  const groupFilter = groups === null ? "" : "where e.group_id = any($1::uuid[])";
+  const bind = groups === null ? [] : [groups];
   const runCounts = await sequelize.query<{ state: string; n: string }>(
     `select r.state, count(*) as n from runs r join ensembles e on e.id = r.ensemble_id ${groupFilter} group by r.state`,
-    { type: QueryTypes.SELECT, replacements },
+    { type: QueryTypes.SELECT, bind },
   );
   const runEvents = await sequelize.query<{ at: Date; run_id: string; from_state: string | null; to_state: string; cause: string; ensemble: string }>(
     `select ev.created_at as at, ev.run_id, ev.from_state, ev.to_state, ev.cause, e.name as ensemble
        from run_events ev join runs r on r.id = ev.run_id join ensembles e on e.id = r.ensemble_id ${groupFilter}
       order by ev.created_at desc limit 10`,
-    { type: QueryTypes.SELECT, replacements },
+    { type: QueryTypes.SELECT, bind },
   );
-  const auditFilter = groups === null ? "" : "where a.group_id = any(:groups::uuid[]) or a.actor_id = :me";
+  const auditFilter = groups === null ? "" : "where a.group_id = any($1::uuid[]) or a.actor_id = $2";
   const audits = await sequelize.query<{ at: Date; action: string; target_type: string; actor: string | null }>(
     `select a.created_at as at, a.action, a.target_type, u.name as actor
        from audit_entries a left join users u on u.id = a.actor_id ${auditFilter}
       order by a.created_at desc limit 10`,
-    { type: QueryTypes.SELECT, replacements: { ...replacements, me: who.userId } },
+    { type: QueryTypes.SELECT, bind: groups === null ? [] : [groups, who.userId] },
   );
   const byState = Object.fromEntries(RUN_STATES.map((s) => [s, 0])) as Record<string, number>;
   for (const r of runCounts) byState[r.state] = Number(r.n);

@@ -61,6 +61,7 @@ pg_init() {
   if [ -f "$data/PG_VERSION" ]; then return 0; fi
   log "initdb $data"
   mkdir -p "$(dirname "$data")"
+  chmod a+x "$(dirname "$data")" # the postgres user must be able to traverse to its data directory
   if [ "$(id -u)" = 0 ]; then
     install -d -o postgres -g postgres -m 700 "$data"
     runuser -u postgres -- "$bin/initdb" -D "$data" -U postgres --auth-local=trust --auth-host=scram-sha-256 -E UTF8 --locale=C.UTF-8 >/dev/null

@@ -36,10 +36,11 @@ describe("sign-in in the browser", () => {
   it("a wrong password is refused with the same words as an unknown account", async () => {
     const { context, page } = await newPage(browser);
     await signInAs(page, DEMO_PEOPLE[0].email, "not-the-password");
-    const alert = page.getByRole("alert");
+    const alert = page.getByTestId("sign-in-error");
     await alert.waitFor();
     expect(await alert.textContent()).toBe("wrong e-mail or password");
     await shot(page, "sign-in-refused");
+    await page.reload();
     await signInAs(page, "nobody@brannock.example", "not-the-password");
     await alert.waitFor();
     expect(await alert.textContent()).toBe("wrong e-mail or password");

@@ -16,6 +16,7 @@ export async function launch(): Promise<{ browser: Browser; close: () => Promise
 
 export async function newPage(browser: Browser): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ baseURL: env.appUrl, viewport: { width: 1360, height: 900 } });
+  context.setDefaultTimeout(15_000);
   return { context, page: await context.newPage() };
 }
 

@@ -15,7 +15,7 @@ import type { Role } from "@/lib/auth/roles";
 
 type Expect = Partial<Record<Role | "anonymous", number | { member: number; outsider: number }>>;
 type Fx = Awaited<ReturnType<typeof makeMatrixPeople>>;
-type RouteRow = { file: string; method: string; path: (fx: Fx, p: Person | null) => string | Promise<string>; body?: (fx: Fx, p: Person | null) => unknown; expect: Expect; viaToken?: boolean };
+type RouteRow = { file: string; method: string; path: (fx: Fx, p: Person | null) => string | Promise<string>; body?: (fx: Fx, p: Person | null) => unknown; headers?: Record<string, string>; expect: Expect };
 
 const ALL = (s: number): Expect => ({ anonymous: 401, viewer: s, researcher: s, pi: s, coordinator: s, admin: s });
 const ONLY = (roles: Role[], ok: number, anon = 401): Expect => {
@@ -51,7 +51,8 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/people/[id]/memberships/[groupId]/route.ts", method: "PUT", path: async (fx) => `/api/v1/people/${await throwawayUser()}/memberships/${fx.groupA.id}`, body: () => ({ member: true }), expect: ONLY(["admin"], 200) },
   { file: "app/api/v1/people/[id]/memberships/[groupId]/route.ts", method: "DELETE", path: async (fx) => `/api/v1/people/${await throwawayUser()}/memberships/${fx.groupA.id}`, expect: ONLY(["admin"], 200) },
   { file: "app/api/auth/[...nextauth]/route.ts", method: "GET", path: () => "/api/auth/session", expect: { anonymous: 200, viewer: 200, admin: 200 } },
-  { file: "app/api/auth/[...nextauth]/route.ts", method: "POST", path: () => "/api/auth/signout", body: () => "", expect: { anonymous: 200 } },
+  // a credentials post without a valid CSRF token is turned away by next-auth with a redirect, never a session
+  { file: "app/api/auth/[...nextauth]/route.ts", method: "POST", path: () => "/api/auth/callback/credentials", body: () => "csrfToken=forged&email=a%40b.example&password=x", headers: { "content-type": "application/x-www-form-urlencoded" }, expect: { anonymous: 302 } },
 ];
 
 type ActionRow = { file: string; def: ActionDef<any, any>; input: (fx: Fx, p: Person) => unknown | Promise<unknown>; expect: Expect };
@@ -84,7 +85,7 @@ describe("route handlers × roles × group membership", () => {
         if (expected === undefined) continue;
         // sessions for half the calls, API tokens for the other half: both paths go through the one guard
         const caller = p ? (p.where === "member" ? { cookie: p.cookie } : { token: p.token }) : {};
-        const res = await api(row.method, await row.path(fx, p), caller, row.body?.(fx, p));
+        const res = await api(row.method, await row.path(fx, p), caller, row.body?.(fx, p), row.headers);
         seen.push(`${p ? `${p.role}/${p.where}` : "anonymous"}: ${res.status}${res.status === expected ? "" : ` (expected ${expected}) ${res.text.slice(0, 120)}`}`);
       }
       expect(seen.filter((s) => s.includes("expected"))).toEqual([]);
