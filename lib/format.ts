@@ -7,13 +7,16 @@
 export function concise(value: number, error: number): string {
   if (!Number.isFinite(value)) return String(value);
   if (!Number.isFinite(error) || error <= 0) return formatPlain(value);
-  const decimals = Math.max(0, 1 - Math.floor(Math.log10(error)));
-  let errDigits = Math.round(error * 10 ** decimals);
-  let dec = decimals;
-  if (errDigits >= 100 && dec > 0) { dec -= 1; errDigits = Math.round(error * 10 ** dec); }
-  const v = value.toFixed(dec).replace("-", "−");
-  if (dec === 0) return `${v}(${Math.round(error)})`;
-  return `${v}(${errDigits})`;
+  let exp = Math.floor(Math.log10(error)) - 1; // place of the error's second significant digit
+  if (Math.round(error / 10 ** exp) >= 100) exp += 1; // 0.000996 rounds to 0.0010: keep two digits
+  const minus = (s: string) => s.replace("-", "−");
+  if (exp < 0) {
+    const dec = -exp;
+    return `${minus(value.toFixed(dec))}(${Math.round(error * 10 ** dec)})`;
+  }
+  // errors of 10 and more: value and error rounded to the same (integer) place
+  const scale = 10 ** exp;
+  return `${minus(String(Math.round(value / scale) * scale))}(${Math.round(error / scale) * scale})`;
 }
 
 export function formatPlain(x: number, digits = 6): string {

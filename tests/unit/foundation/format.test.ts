@@ -11,7 +11,8 @@ describe("concise error notation", () => {
     expect(concise(1.0, 0.000996)).toBe("1.0000(10)");
   });
   it("keeps integer places for large errors", () => {
-    expect(concise(1234.5, 23.4)).toBe("1234(23)");
+    expect(concise(1234.4, 23.4)).toBe("1234(23)");
+    expect(concise(98765.4, 1234)).toBe("98800(1200)");
   });
   it("falls back to the plain value without a usable error", () => {
     expect(concise(3.25, 0)).toBe("3.25");
