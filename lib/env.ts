@@ -58,7 +58,17 @@ export const env = {
   },
   cluster: { port: int("ERGODEX_CLUSTER_PORT", 2222), stateDir: path.join(dataDir, "cluster-fake") },
   smtp: { port: int("ERGODEX_SMTP_PORT", 2525), mailDir: path.join(dataDir, "mail") },
-  broker: { healthPort: int("ERGODEX_BROKER_PORT", 3418) },
+  broker: {
+    healthPort: int("ERGODEX_BROKER_PORT", 3418),
+    /** How long failures of one ensemble are gathered into one e-mail. */
+    digestSeconds: int("ERGODEX_DIGEST_SECONDS", 120),
+    /** Poll interval for the loopback fake cluster (real clusters set their own, default 60 s). */
+    pollSeconds: int("ERGODEX_POLL_SECONDS", 2),
+    /** Grace period for jobs in hand at shutdown. */
+    shutdownSeconds: int("ERGODEX_SHUTDOWN_SECONDS", 20),
+  },
+  /** The template database integration tests clone. */
+  testTemplateDb: e.ERGODEX_PG_TEMPLATE_DB ?? "ergodex_template",
   archiveDir: path.join(dataDir, "archive"),
   get appUrl(): string {
     return e.NEXTAUTH_URL ?? `http://127.0.0.1:${this.web.port}`;
