@@ -8,6 +8,10 @@ ensure_chromium
 ensure_node_modules
 ensure_build
 
+# One test stack per checkout at a time: a second `npm test` waits for the first instead of stopping its stack.
+mkdir -p .data; exec 9>.data/test.lock
+flock -n 9 || { log "another npm test is running in this checkout; waiting for it"; flock 9; }
+
 export ERGODEX_TEST=1
 export ERGODEX_DATA_DIR="$ROOT/.data/test-run"
 export ERGODEX_PG_PORT="${ERGODEX_TEST_PG_PORT:-54339}"

@@ -18,7 +18,7 @@ export function AllocationsCard({ allocations, className }: { allocations: A[]; 
               return (
                 <tr key={a.id}>
                   <td><div className="font-medium">{a.name}</div><div className="text-xs text-ink-soft">{a.group}</div></td>
-                  <td className="text-xs num">{day(a.periodStart)} → {day(a.periodEnd)}</td>
+                  <td className="text-xs num whitespace-nowrap">{day(a.periodStart)} → {day(a.periodEnd)}</td>
                   <td className="n">{coreHours(total)}</td>
                   <td className="n">{coreHours(a.charged)}</td>
                   <td className="n">{coreHours(a.held)}</td>
