@@ -14,6 +14,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { createRng } from "@/lib/samplers/rng";
+import { gammaMethod } from "@/lib/analysis";
 import { validateParams } from "@/lib/samplers/validate";
 import { CORE_FACTORIES } from "@/cluster-fake/samplers/registry";
 import type { SamplerName } from "@/lib/samplers/schemas";
@@ -42,8 +43,24 @@ export interface Estimate {
   blocks: number;
 }
 
-/** Binning estimate with blocks of ceil(20·tauGuess) values (see the file comment). */
+/**
+ * The run's own error bar, as the issue asks: the Gamma method of Wolff (2004) from lib/analysis
+ * (automatic window, S = 1.5). The binning estimate below is kept as an independent cross-check:
+ * the two errors must agree within a factor 1.5 (common practice for error-of-error at these lengths),
+ * so a broken analysis library cannot silently widen the tolerance.
+ */
 export function binned(x: ArrayLike<number>, tauGuess: number): Estimate {
+  const g = gammaMethod(Float64Array.from(x));
+  const b = binning(x, tauGuess);
+  const ratio = g.error / b.err;
+  if (g.error > 0 && (ratio > 1.5 || ratio < 1 / 1.5)) {
+    throw new Error(`Gamma-method error ${g.error.toExponential(2)} and binning error ${b.err.toExponential(2)} disagree (ratio ${ratio.toFixed(2)})`);
+  }
+  return { mean: g.mean, err: g.error, tau: g.tauInt, blockSize: b.blockSize, blocks: b.blocks };
+}
+
+/** Binning estimate with blocks of ceil(20·tauGuess) values (see the file comment). */
+export function binning(x: ArrayLike<number>, tauGuess: number): Estimate {
   const B = Math.max(1, Math.ceil(20 * tauGuess));
   const nb = Math.floor(x.length / B);
   if (nb < 20) throw new Error(`only ${nb} blocks of ${B}: run longer (need ≥ 20 blocks)`);
