@@ -1,0 +1,35 @@
+"use client";
+import { useQuery } from "@tanstack/react-query";
+import { fetchJson } from "./fetch-json";
+
+/** One run in an ensemble's grid. */
+export type GridRun = { id: string; replica: number; state: string; progress: number; attempt: number; failureReason: string | null; sweepsDone: number; sweepsTotal: number | null };
+export type GridPoint = { id: string; index: number; params: Record<string, unknown>; runs: GridRun[] };
+
+/** GET /api/v1/ensembles/:id, as the ensemble page reads it. */
+export type EnsembleDetail = {
+  id: string; name: string; description: string | null; state: string;
+  owner: { id: string; name: string } | null; sampler: { name: string; version: string } | null;
+  group: { id: string; name: string } | null; allocation: { id: string; name: string } | null; cluster: { id: string; name: string } | null;
+  tags: string[]; specHash: string; masterSeed: string; spec: Record<string, unknown>;
+  createdAt: string; finishedAt: string | null;
+  counts: Record<string, number>; runs: number;
+  reservedCoreHours: number; chargedCoreHours: number; releasedCoreHours: number;
+  points: GridPoint[];
+};
+
+const ACTIVE_RUN = ["queued", "dispatched", "running", "collecting"];
+
+/** True while any run may still change state (the page keeps polling). */
+export const isLive = (e: EnsembleDetail) => e.state === "active" || ACTIVE_RUN.some((s) => (e.counts[s] ?? 0) > 0);
+
+/** One ensemble, refetched about every 2 s while it is active, then left alone. */
+export function useEnsemble(id: string, initial: EnsembleDetail) {
+  return useQuery({
+    queryKey: ["ensemble", id],
+    queryFn: ({ signal }) => fetchJson<{ data: EnsembleDetail }>(`/api/v1/ensembles/${id}`, signal).then((r) => r.data),
+    initialData: initial,
+    initialDataUpdatedAt: 0, // fetch once on mount: the server render may be seconds old
+    refetchInterval: (q) => (q.state.data && isLive(q.state.data) ? 2_000 : false),
+  });
+}

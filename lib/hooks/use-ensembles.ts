@@ -1,0 +1,30 @@
+"use client";
+import { keepPreviousData, useQuery } from "@tanstack/react-query";
+import { fetchJson } from "./fetch-json";
+
+/** One row of GET /api/v1/ensembles. */
+export type EnsembleRow = {
+  id: string;
+  name: string;
+  state: string;
+  owner: { id: string; name: string } | null;
+  sampler: { name: string; version: string } | null;
+  tags: string[];
+  runs: number;
+  counts: Record<string, number>;
+  reservedCoreHours: number;
+  createdAt: string;
+};
+
+export type EnsemblePage = { data: EnsembleRow[]; total: number; page: number; pageSize: number };
+
+/** The ensembles list for a query string (filters, sort, page) taken verbatim from the page's URL. */
+export function useEnsembles(query: string) {
+  return useQuery({
+    queryKey: ["ensembles", query],
+    queryFn: ({ signal }) => fetchJson<EnsemblePage>(`/api/v1/ensembles${query ? `?${query}` : ""}`, signal),
+    placeholderData: keepPreviousData,
+    // the list shows live states too, but slower than one ensemble's page
+    refetchInterval: 10_000,
+  });
+}
