@@ -1,0 +1,124 @@
+// Parse a bundle's series file (csv or f64le) into columns, refusing anything that is not clean data.
+import fs from "node:fs";
+import os from "node:os";
+import { bundleError, type BundleLocation } from "./bundle-error";
+
+/** The series as columns: columns[0] is "sweep", values[k] holds column k for every row. */
+export type ParsedSeries = { rows: number; columns: string[]; values: Float64Array[] };
+
+/** Largest series file read; the columns are held in memory for the estimates anyway. */
+export const MAX_SERIES_BYTES = 1 << 30;
+
+// Plain decimal notation only: Number() alone would accept "", " 1", "0x1f" and "Infinity".
+const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+const NON_FINITE = /^[+-]?(?:nan|inf|infinity)$/i;
+
+function parseField(text: string, where: BundleLocation): number {
+  if (!DECIMAL.test(text)) {
+    if (NON_FINITE.test(text)) throw bundleError(where, `${JSON.stringify(text)} is not finite (NaN and ±Infinity are not allowed)`);
+    throw bundleError(where, `${JSON.stringify(text)} is not a decimal number`);
+  }
+  const v = Number(text);
+  if (!Number.isFinite(v)) throw bundleError(where, `${JSON.stringify(text)} overflows a float64 (not finite)`);
+  return v;
+}
+
+/** Sweeps are sweep counts: non-negative integers, strictly increasing down the file. */
+function checkSweep(sweep: number, previous: number | undefined, where: BundleLocation, previousAt: string): void {
+  if (!Number.isInteger(sweep) || sweep < 0) throw bundleError(where, `sweep ${sweep} is not a non-negative integer`);
+  if (previous === undefined) return;
+  if (sweep === previous) throw bundleError(where, `sweep ${sweep} repeats the sweep of ${previousAt} (duplicate measurement)`);
+  if (sweep < previous) throw bundleError(where, `sweep ${sweep} is smaller than ${previous} at ${previousAt}: sweeps must increase strictly`);
+}
+
+function checkSize(file: string, name: string): number {
+  const bytes = fs.statSync(file).size;
+  if (bytes > MAX_SERIES_BYTES) throw bundleError({ file: name }, `is ${bytes} bytes, more than the limit of ${MAX_SERIES_BYTES}`);
+  return bytes;
+}
+
+function allocate(columns: number, rows: number): Float64Array[] {
+  return Array.from({ length: columns }, () => new Float64Array(rows));
+}
+
+/**
+ * Parse a csv series: header `sweep,<observables in manifest order>`, then exactly `rows` rows of
+ * finite decimal numbers, each line ending in a newline (a missing final newline means a cut-off
+ * file). `name` is the file's name in the bundle, used in every message.
+ */
+export async function parseCsvSeries(file: string, name: string, observables: readonly string[], rows: number): Promise<ParsedSeries> {
+  const columns = ["sweep", ...observables];
+  const bytes = checkSize(file, name);
+  // Each row needs at least one digit and one separator per column; this bounds the allocation.
+  if (rows * columns.length * 2 > bytes) {
+    throw bundleError({ file: name }, `manifest.json /series/rows says ${rows} rows, but ${bytes} bytes cannot hold that many rows of ${columns.length} columns`);
+  }
+  const values = allocate(columns.length, rows);
+  const header = columns.join(",");
+  let line = 0;
+  let row = 0;
+  let carry = "";
+  const take = (raw: string) => {
+    line++;
+    const text = raw.endsWith("\r") ? raw.slice(0, -1) : raw;
+    if (line === 1) {
+      if (text !== header) throw bundleError({ file: name, line }, `header must be "${header}" (sweep, then the manifest's observables in order), got ${JSON.stringify(text.slice(0, 200))}`);
+      return;
+    }
+    if (text === "") throw bundleError({ file: name, line }, "is empty");
+    if (row >= rows) throw bundleError({ file: name, line }, `more data rows than manifest.json /series/rows = ${rows}`);
+    const fields = text.split(",");
+    if (fields.length !== columns.length) throw bundleError({ file: name, line }, `has ${fields.length} columns, the header has ${columns.length}`);
+    for (let c = 0; c < columns.length; c++) values[c][row] = parseField(fields[c], { file: name, line, column: columns[c] });
+    checkSweep(values[0][row], row > 0 ? values[0][row - 1] : undefined, { file: name, line, column: "sweep" }, `line ${line - 1}`);
+    row++;
+  };
+  const stream = fs.createReadStream(file, { encoding: "utf8", highWaterMark: 1 << 20 });
+  for await (const piece of stream as AsyncIterable<string>) {
+    const lines = (carry + piece).split("\n");
+    carry = lines.pop()!;
+    for (const l of lines) take(l);
+  }
+  if (carry !== "") throw bundleError({ file: name, line: line + 1 }, "does not end with a newline: the last row is incomplete (file cut off?)");
+  if (line === 0) throw bundleError({ file: name }, "is empty");
+  if (row !== rows) throw bundleError({ file: name }, `has ${row} data rows, manifest.json /series/rows says ${rows}`);
+  return { rows, columns, values };
+}
+
+/**
+ * Parse an f64le series: the same columns as little-endian float64, row-major, no header. The
+ * byte length must be a whole number of rows and match `rows`; every value finite.
+ */
+export function parseF64leSeries(file: string, name: string, observables: readonly string[], rows: number): ParsedSeries {
+  const columns = ["sweep", ...observables];
+  const rowBytes = 8 * columns.length;
+  const bytes = checkSize(file, name);
+  if (bytes % rowBytes !== 0) {
+    const whole = Math.floor(bytes / rowBytes);
+    throw bundleError({ file: name, row: whole + 1 }, `is truncated: ${bytes} bytes is not a multiple of ${rowBytes} (${columns.length} columns × 8 bytes); row ${whole + 1} is incomplete`);
+  }
+  const found = bytes / rowBytes;
+  if (found !== rows) throw bundleError({ file: name }, `has ${found} rows (${bytes} bytes), manifest.json /series/rows says ${rows}`);
+  const raw = fs.readFileSync(file);
+  const flat = decodeLittleEndian(raw);
+  const values = allocate(columns.length, rows);
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < columns.length; c++) {
+      const v = flat[r * columns.length + c];
+      if (!Number.isFinite(v)) throw bundleError({ file: name, row: r + 1, column: columns[c] }, `value ${v} at byte ${(r * columns.length + c) * 8} is not finite (NaN and ±Infinity are not allowed)`);
+      values[c][r] = v;
+    }
+    checkSweep(values[0][r], r > 0 ? values[0][r - 1] : undefined, { file: name, row: r + 1, column: "sweep" }, `row ${r}`);
+  }
+  return { rows, columns, values };
+}
+
+function decodeLittleEndian(raw: Buffer): Float64Array {
+  const out = new Float64Array(raw.length / 8);
+  if (os.endianness() === "LE") {
+    new Uint8Array(out.buffer).set(raw); // a copy, so alignment of the Buffer does not matter
+  } else {
+    for (let i = 0; i < out.length; i++) out[i] = raw.readDoubleLE(i * 8);
+  }
+  return out;
+}
