@@ -11,7 +11,7 @@ import { computeRunEstimates } from "@/lib/estimates/compute-run-estimates";
 import { db, type Run } from "@/models";
 import { makeEnsemble, makeGroup, makeUser, useTestDatabase } from "@/tests/support/db";
 import { kaufmanEnergy } from "@/tests/unit/samplers/ising-exact";
-import { copyBundle, readCsv, sampleBundle, sha256Of, registerIsing, tableCounts } from "./bundles";
+import { copyBundle, editManifest, readCsv, sampleBundle, sha256Of, registerIsing, tableCounts } from "./bundles";
 
 useTestDatabase();
 const PARAMS = { L: 8, T: 2.3, algorithm: "metropolis" };
@@ -150,7 +150,9 @@ describe("importBundle with an f64le bundle", () => {
   });
 
   it("refuses a run id that does not exist with not_found", async () => {
-    const err = await importBundle({ runId: "00000000-0000-4000-8000-000000000000", dir: copyBundle(f64Bundle), source: "cluster" }).catch((e) => e);
+    const dir = copyBundle(f64Bundle);
+    editManifest(dir, (m) => { m.host = "elsewhere"; }); // a bundle not imported yet, so the run is looked up
+    const err = await importBundle({ runId: "00000000-0000-4000-8000-000000000000", dir, source: "cluster" }).catch((e) => e);
     expect(err).toBeInstanceOf(AppError);
     expect(err.code).toBe("not_found");
   });
