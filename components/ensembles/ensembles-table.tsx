@@ -12,7 +12,7 @@ import { EnsembleFilters, type FilterOptions } from "./ensemble-filters";
 import { RunMix } from "./run-mix";
 import { EmptyEnsembles } from "./empty-ensembles";
 
-const KEYS = ["state", "sampler", "owner", "tag", "sort", "dir", "page", "pageSize"] as const;
+const KEYS = ["state", "sampler", "owner", "tag", "sort", "order", "page", "pageSize"] as const;
 const col = createColumnHelper<EnsembleRow>();
 
 const columns = [
@@ -32,7 +32,7 @@ const columns = [
     header: "Tags", enableSorting: false,
     cell: (c) => <span className="flex flex-wrap gap-1">{c.getValue().map((t) => <span key={t} className="rounded bg-paper-sunken px-1.5 text-xs">{t}</span>)}</span>,
   }),
-  col.accessor("runs", { header: "Runs", cell: (c) => <RunMix counts={c.row.original.counts} total={c.getValue()} /> }),
+  col.accessor((r) => r.runs.total, { id: "runs", header: "Runs", cell: (c) => <RunMix counts={c.row.original.runs} total={c.getValue()} /> }),
   col.accessor("reservedCoreHours", { header: "Reserved", meta: { numeric: true }, cell: (c) => <span className="num">{coreHours(c.getValue())}</span> }),
   col.accessor("createdAt", { header: "Submitted", cell: (c) => <span className="text-xs"><Time at={c.getValue()} /></span> }),
 ];
@@ -41,7 +41,7 @@ const columns = [
 export function EnsemblesTable({ options }: { options: FilterOptions }) {
   const { values, set, query } = useUrlParams(KEYS);
   const { data, error, isPending, isFetching } = useEnsembles(query);
-  const sorting: SortingState = useMemo(() => (values.sort ? [{ id: values.sort, desc: values.dir === "desc" }] : [{ id: "createdAt", desc: true }]), [values.sort, values.dir]);
+  const sorting: SortingState = useMemo(() => (values.sort ? [{ id: values.sort, desc: values.order === "desc" }] : [{ id: "createdAt", desc: true }]), [values.sort, values.order]);
   const table = useReactTable({
     data: data?.data ?? [],
     columns,
@@ -53,7 +53,7 @@ export function EnsemblesTable({ options }: { options: FilterOptions }) {
     state: { sorting },
     onSortingChange: (updater) => {
       const next = typeof updater === "function" ? updater(sorting) : updater;
-      set({ sort: next[0]?.id ?? null, dir: next[0] ? (next[0].desc ? "desc" : "asc") : null });
+      set({ sort: next[0]?.id ?? null, order: next[0] ? (next[0].desc ? "desc" : "asc") : null });
     },
     enableSortingRemoval: false,
   });

@@ -3,19 +3,18 @@ import { useQuery } from "@tanstack/react-query";
 import { fetchJson } from "./fetch-json";
 
 /** One run in an ensemble's grid. */
-export type GridRun = { id: string; replica: number; state: string; progress: number; attempt: number; failureReason: string | null; sweepsDone: number; sweepsTotal: number | null };
+export type GridRun = { id: string; replica: number; seed: string; state: string; progress: number; attempt: number; failureReason: string | null };
 export type GridPoint = { id: string; index: number; params: Record<string, unknown>; runs: GridRun[] };
+type Ref = { id: string; name: string } | null;
 
-/** GET /api/v1/ensembles/:id, as the ensemble page reads it. */
+/** GET /api/v1/ensembles/:id (lib/ensembles/ensemble-detail.ts) as JSON: dates are ISO strings. */
 export type EnsembleDetail = {
-  id: string; name: string; description: string | null; state: string;
-  owner: { id: string; name: string } | null; sampler: { name: string; version: string } | null;
-  group: { id: string; name: string } | null; allocation: { id: string; name: string } | null; cluster: { id: string; name: string } | null;
-  tags: string[]; specHash: string; masterSeed: string; spec: Record<string, unknown>;
-  createdAt: string; finishedAt: string | null;
-  counts: Record<string, number>; runs: number;
-  reservedCoreHours: number; chargedCoreHours: number; releasedCoreHours: number;
-  points: GridPoint[];
+  id: string; name: string; description: string | null; state: string; tags: string[];
+  spec: Record<string, unknown>; specHash: string; masterSeed: string; createdAt: string; finishedAt: string | null;
+  sampler: { id: string; name: string; version: string } | null; owner: Ref; group: Ref; allocation: Ref; cluster: Ref;
+  counts: Record<string, number> & { total: number }; progress: number;
+  coreHours: { reserved: number; charged: number; released: number; held: number };
+  replicas: number; points: GridPoint[];
 };
 
 const ACTIVE_RUN = ["queued", "dispatched", "running", "collecting"];

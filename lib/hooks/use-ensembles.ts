@@ -2,19 +2,10 @@
 import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import { fetchJson } from "./fetch-json";
 
-/** One row of GET /api/v1/ensembles. */
-export type EnsembleRow = {
-  id: string;
-  name: string;
-  state: string;
-  owner: { id: string; name: string } | null;
-  sampler: { name: string; version: string } | null;
-  tags: string[];
-  runs: number;
-  counts: Record<string, number>;
-  reservedCoreHours: number;
-  createdAt: string;
-};
+import type { EnsembleRow as Row } from "@/lib/ensembles/list-ensembles";
+
+/** One row of GET /api/v1/ensembles (type-only import: the lib module stays on the server). */
+export type EnsembleRow = Row;
 
 export type EnsemblePage = { data: EnsembleRow[]; total: number; page: number; pageSize: number };
 

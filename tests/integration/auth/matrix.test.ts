@@ -10,6 +10,9 @@ import { invokeAction, type ActionDef } from "@/lib/auth/action";
 import { makeMatrixPeople, type Person } from "./people-fixture";
 import * as accountActions from "@/lib/actions/account";
 import * as peopleActions from "@/lib/actions/people";
+import * as ensembleActions from "@/lib/actions/ensembles";
+import { makeAllocation, makeEnsemble } from "../../support/db";
+import { transitionRun } from "@/lib/runs/transition-run";
 import { db } from "@/models";
 import type { Role } from "@/lib/auth/roles";
 
@@ -55,6 +58,22 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/auth/[...nextauth]/route.ts", method: "POST", path: () => "/api/auth/callback/credentials", body: () => "csrfToken=forged&email=a%40b.example&password=x", headers: { "content-type": "application/x-www-form-urlencoded" }, expect: { anonymous: 302 } },
 ];
 
+// A tiny valid ising2d spec for the ensemble actions (placement problems are listed by preview, not thrown).
+const matrixSpec = () => ({ format: "ergodex.ensemble/1", name: `matrix ${uniq()}`, sampler: { name: "ising2d", version: "1.0.0" }, fixed: { L: 4, T: 2, algorithm: "metropolis" },
+  replicas: 1, thermalization: 0, measurements: 10, seed: "1", resources: { cores: 1, wallMinutes: 1 } });
+const ACT_ON_A: Expect = { viewer: 403, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 403, admin: 200 };
+let matrixAllocation: Awaited<ReturnType<typeof makeAllocation>> | null = null;
+/** One point, one run, no cluster (nothing for the broker to start); with `failed` the run has failed and the allocation can re-reserve it. */
+async function matrixEnsemble(fx: Fx, failed: boolean) {
+  const owner = (await db().User.findByPk(fx.people.find((p) => p.role === "researcher" && p.where === "member")!.id))!;
+  const sampler = (await db().Sampler.findOne({ where: { name: "ising2d", version: "1.0.0" } }))!;
+  matrixAllocation ??= await makeAllocation(fx.groupA, 1000);
+  const { ensemble, runs } = await makeEnsemble({ owner, group: fx.groupA, sampler, cluster: null, allocation: failed ? matrixAllocation : null, points: [{ L: 4, T: 2 }], replicas: 1 });
+  await ensemble.update({ spec: { ...matrixSpec(), ...ensemble.spec } });
+  if (failed) await transitionRun(runs[0].id, "failed", { cause: "test.fail", patch: { failureReason: "nonzero_exit" } });
+  return ensemble;
+}
+
 type ActionRow = { file: string; def: ActionDef<any, any>; input: (fx: Fx, p: Person) => unknown | Promise<unknown>; expect: Expect };
 const ACTIONS: ActionRow[] = [
   { file: "app/(app)/account/actions/change-password.ts", def: accountActions.changePasswordAction, input: (fx) => ({ current: fx.password, next: fx.password }), expect: ALL(200) },
@@ -63,6 +82,12 @@ const ACTIONS: ActionRow[] = [
   { file: "app/(app)/people/actions/create-person.ts", def: peopleActions.createPersonAction, input: () => ({ email: `act.${uniq()}@matrix.example`, name: "Act", role: "viewer", password: "long-enough-pass" }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/update-person.ts", def: peopleActions.updatePersonAction, input: async () => ({ id: await throwawayUser(), change: { name: "Changed" } }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/set-membership.ts", def: peopleActions.setMembershipAction, input: async (fx) => ({ userId: await throwawayUser(), groupId: fx.groupA.id, member: true }), expect: ONLY(["admin"], 200) },
+  // ensembles: preview needs a submitting role; submit of an invalid spec passes the guard and is refused by parseSpec (422)
+  { file: "app/(app)/ensembles/actions/preview-ensemble.ts", def: ensembleActions.previewEnsembleAction, input: () => ({ spec: matrixSpec() }), expect: ONLY(["researcher", "pi", "admin"], 200) },
+  { file: "app/(app)/ensembles/actions/submit-ensemble.ts", def: ensembleActions.submitEnsembleAction, input: () => ({ spec: { ...matrixSpec(), replicas: 0 } }), expect: ONLY(["researcher", "pi", "admin"], 422) },
+  // cancel / resubmit act on a fresh ensemble of group A owned by its researcher: owner, leading PI and admin may; outsiders get 404
+  { file: "app/(app)/ensembles/actions/cancel-ensemble.ts", def: ensembleActions.cancelEnsembleAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, false)).id }), expect: ACT_ON_A },
+  { file: "app/(app)/ensembles/actions/resubmit-failed.ts", def: ensembleActions.resubmitFailedAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, true)).id }), expect: ACT_ON_A },
 ];
 
 const want = (e: Expect, p: Person | null): number | undefined => {
