@@ -1,0 +1,82 @@
+// One broker cycle (the poll-clusters job): for every active cluster, in parallel and each
+// under its own lock, poll its runs, then dispatch queued ones into the free slots. Because
+// dispatch runs in every cycle, a queued run whose dispatch-runs job was lost is still sent.
+// A run stuck in collecting (its collect job lost with a killed broker) is queued for
+// collection again.
+import type { Logger } from "pino";
+import { QueryTypes } from "sequelize";
+import { db, type Cluster } from "@/models";
+import { adapterFor } from "@/lib/clusters/adapter-for";
+import { enqueue } from "@/lib/queue/enqueue";
+import { ClusterError, HostKeyMismatchError } from "@/broker/adapters/errors";
+import { withLock } from "./locks";
+import { pollCluster, type PollOutcome } from "./poll";
+import { dispatchCluster, type DispatchOutcome } from "./dispatch";
+import { HOST_KEY_NOTE, markContact, markUnreachable } from "./cluster-health";
+import { activeClusters } from "./cluster-runs";
+
+/** A host-key-mismatched cluster is probed at most this often (until someone pins the right key). */
+const MISMATCH_PROBE_MS = 30_000;
+const lastProbe = new Map<string, number>();
+
+/** What a cycle did, per cluster name. */
+export type CycleOutcome = Record<string, { poll?: PollOutcome; dispatch?: DispatchOutcome; error?: string; skipped?: string }>;
+
+/** Poll and dispatch on one cluster (under its lock). */
+export async function serveCluster(cluster: Cluster, log: Logger): Promise<CycleOutcome[string]> {
+  const clog = log.child({ cluster: cluster.name });
+  const locked = await withLock(`cluster:${cluster.id}`, async () => {
+    await cluster.reload();
+    if (!cluster.active) return { skipped: "inactive" };
+    const adapter = adapterFor(cluster);
+    try {
+      if (!cluster.healthy) {
+        if (cluster.healthNote?.startsWith(HOST_KEY_NOTE)) {
+          if (Date.now() - (lastProbe.get(cluster.id) ?? 0) < MISMATCH_PROBE_MS) return { skipped: "host key mismatch" };
+          lastProbe.set(cluster.id, Date.now());
+        }
+        await adapter.health();
+        await markContact(cluster);
+        clog.info("cluster answers again: healthy");
+      }
+      const poll = await pollCluster(cluster, adapter, clog);
+      const dispatch = await dispatchCluster(cluster, adapter, clog);
+      if (poll.watched > 0 || dispatch.submitted + dispatch.reconciled > 0) await markContact(cluster);
+      return { poll, dispatch };
+    } catch (err) {
+      if (err instanceof HostKeyMismatchError) return { error: err.message }; // the adapter marked and alerted
+      if (err instanceof ClusterError && err.transient) {
+        await markUnreachable(cluster, err);
+        clog.warn({ err: err.message }, "cluster unreachable");
+        return { error: err.message };
+      }
+      throw err;
+    }
+  });
+  return locked.ran ? locked.value : { skipped: "locked" };
+}
+
+/** Run one cycle over every active cluster. */
+export async function runCycle(log: Logger): Promise<CycleOutcome> {
+  const clusters = await activeClusters();
+  const results = await Promise.all(clusters.map(async (c) => {
+    try {
+      return [c.name, await serveCluster(c, log)] as const;
+    } catch (err) {
+      log.error({ err, cluster: c.name }, "cluster cycle failed");
+      return [c.name, { error: (err as Error).message }] as const;
+    }
+  }));
+  await requeueStaleCollections(120);
+  return Object.fromEntries(results);
+}
+
+/** Queue collect-run again for runs collecting longer than `seconds` (0 = all of them, at start-up). */
+export async function requeueStaleCollections(seconds: number): Promise<number> {
+  const rows = await db().sequelize.query<{ id: string }>(
+    // Touching updated_at spaces the requeues of one run `seconds` apart.
+    `UPDATE runs SET updated_at = now() WHERE state = 'collecting' AND updated_at <= now() - make_interval(secs => $1) RETURNING id`,
+    { bind: [seconds], type: QueryTypes.SELECT });
+  for (const r of rows) await enqueue("collect-run", { runId: r.id });
+  return rows.length;
+}

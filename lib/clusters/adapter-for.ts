@@ -1,0 +1,123 @@
+import "server-only";
+// Cluster row → ClusterAdapter: one adapter (one SSH connection) per cluster, reused by every
+// job in the process, rebuilt only when the connection settings change.
+//
+// This is the one lib/ module that imports from broker/: the adapters are the broker's, and
+// the contract puts the Cluster-row-to-adapter step beside the other cluster logic.
+import { FakeClusterAdapter } from "@/broker/adapters/fake-cluster-adapter";
+import { HostKeyMismatchError } from "@/broker/adapters/errors";
+import type { SshConnection } from "@/broker/adapters/ssh-connection";
+import type { ClusterAdapter } from "@/broker/adapters/types";
+import { openSecret } from "@/lib/crypto/secret-box";
+import { log } from "@/lib/log";
+import { enqueueMail } from "@/lib/mail/enqueue-mail";
+import { db, type Cluster } from "@/models";
+import { env } from "@/lib/env";
+
+type Entry = { key: string; adapter: GuardedAdapter };
+const cache = new Map<string, Entry>();
+
+/** Fields whose change means a new connection. */
+const connectionKey = (c: Cluster) => JSON.stringify([c.kind, c.host, c.port, c.username, c.hostKeyFingerprint, c.privateKeyEncrypted]);
+
+/**
+ * Wraps an adapter so that a host-key mismatch on any call marks the cluster unhealthy and
+ * alerts admins and coordinators before the error goes on to the caller.
+ */
+export class GuardedAdapter implements ClusterAdapter {
+  constructor(readonly clusterId: string, readonly inner: FakeClusterAdapter) {}
+
+  /** The SSH connection, for its round-trip counters. */
+  get connection(): SshConnection { return this.inner.connection; }
+
+  private async guard<T>(fn: () => Promise<T>): Promise<T> {
+    try {
+      return await fn();
+    } catch (err) {
+      if (err instanceof HostKeyMismatchError) await reportHostKeyMismatch(this.clusterId, err).catch((e) => log.error({ err: e }, "could not record host-key mismatch"));
+      throw err;
+    }
+  }
+
+  stage: ClusterAdapter["stage"] = (runs) => this.guard(() => this.inner.stage(runs));
+  submit: ClusterAdapter["submit"] = (runs) => this.guard(() => this.inner.submit(runs));
+  status: ClusterAdapter["status"] = (ids) => this.guard(() => this.inner.status(ids));
+  fetch: ClusterAdapter["fetch"] = (id, dir) => this.guard(() => this.inner.fetch(id, dir));
+  cancel: ClusterAdapter["cancel"] = (ids) => this.guard(() => this.inner.cancel(ids));
+  health: ClusterAdapter["health"] = () => this.guard(() => this.inner.health());
+  close: ClusterAdapter["close"] = () => this.inner.close();
+}
+
+function build(cluster: Cluster): GuardedAdapter {
+  if (cluster.kind !== "fake-ssh") throw new Error(`cluster ${cluster.name}: no adapter for kind "${cluster.kind}" yet`);
+  const inner = new FakeClusterAdapter({
+    host: cluster.host, port: cluster.port, username: cluster.username,
+    privateKey: openSecret(cluster.privateKeyEncrypted),
+    hostKeyFingerprint: cluster.hostKeyFingerprint,
+    // The ergodex-node protocol fixes the layout: each run's folder sits at the SFTP root
+    // (the node's own work dir, which cluster.workDir names for people).
+    workDir: "/",
+    logger: log,
+    reconnect: { initialDelayMs: 250, maxDelayMs: 5_000, maxAttempts: env.isTest ? 3 : 6 },
+  });
+  return new GuardedAdapter(cluster.id, inner);
+}
+
+/** The process's adapter for `cluster`, connecting lazily on first use. */
+export function adapterFor(cluster: Cluster): GuardedAdapter {
+  const key = connectionKey(cluster);
+  const known = cache.get(cluster.id);
+  if (known && known.key === key) return known.adapter;
+  if (known) void known.adapter.close().catch(() => {});
+  const adapter = build(cluster);
+  cache.set(cluster.id, { key, adapter });
+  return adapter;
+}
+
+/** Close every cached connection (shutdown). */
+export async function closeAdapters(): Promise<void> {
+  const entries = [...cache.values()];
+  cache.clear();
+  await Promise.all(entries.map((e) => e.adapter.close().catch(() => {})));
+}
+
+/** Round trips per cluster id since the process started. */
+export function adapterRoundTrips(): Record<string, number> {
+  return Object.fromEntries([...cache.entries()].map(([id, e]) => [id, e.adapter.connection.roundTrips]));
+}
+
+/**
+ * Mark the cluster unhealthy with a note saying what was seen, and e-mail admins and
+ * coordinators once per offending key (the dedupe key carries the fingerprint we were shown).
+ */
+export async function reportHostKeyMismatch(clusterId: string, err: HostKeyMismatchError): Promise<void> {
+  const { sequelize, Cluster, User } = db();
+  await sequelize.transaction(async (transaction) => {
+    const cluster = await Cluster.findByPk(clusterId, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!cluster) return;
+    const note = `host key mismatch: the server presented ${err.actual}, ${err.expected} is pinned; connection refused (${new Date().toISOString()})`;
+    if (!cluster.healthy && cluster.healthNote?.startsWith(`host key mismatch: the server presented ${err.actual},`)) return;
+    await cluster.update({ healthy: false, healthNote: note }, { transaction });
+    const staff = await User.findAll({ where: { role: ["admin", "coordinator"], active: true }, attributes: ["email"], transaction });
+    if (staff.length === 0) return void log.error({ cluster: cluster.name }, "host key mismatch and nobody to tell (no admin or coordinator)");
+    await enqueueMail({
+      to: staff.map((u) => u.email),
+      subject: `[Ergodex] Cluster ${cluster.name}: host key mismatch, connection refused`,
+      textBody: [
+        `The broker refused to connect to cluster "${cluster.name}" (${cluster.host}:${cluster.port}).`,
+        ``,
+        `Pinned host key:     ${err.expected}`,
+        `Key the server sent: ${err.actual}`,
+        ``,
+        `The cluster is marked unhealthy and nothing is dispatched to it. If the server's key was`,
+        `changed on purpose, pin the new fingerprint on the cluster's page; otherwise treat this`,
+        `as a possible interception and check the host.`,
+        ``,
+        `${env.appUrl}/clusters`,
+      ].join("\n"),
+      kind: "cluster.host-key",
+      dedupeKey: `cluster.host-key:${cluster.id}:${err.actual}`,
+    }, { transaction });
+    log.error({ cluster: cluster.name, expected: err.expected, actual: err.actual }, "host key mismatch: cluster marked unhealthy, admins alerted");
+  });
+}
