@@ -53,9 +53,23 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/people/[id]/route.ts", method: "PATCH", path: async () => `/api/v1/people/${await throwawayUser()}`, body: () => ({ name: "Renamed" }), expect: ONLY(["admin"], 200) },
   { file: "app/api/v1/people/[id]/memberships/[groupId]/route.ts", method: "PUT", path: async (fx) => `/api/v1/people/${await throwawayUser()}/memberships/${fx.groupA.id}`, body: () => ({ member: true }), expect: ONLY(["admin"], 200) },
   { file: "app/api/v1/people/[id]/memberships/[groupId]/route.ts", method: "DELETE", path: async (fx) => `/api/v1/people/${await throwawayUser()}/memberships/${fx.groupA.id}`, expect: ONLY(["admin"], 200) },
+  { file: "app/api/v1/mailbox/route.ts", method: "GET", path: () => "/api/v1/mailbox?q=ergodex", expect: ONLY(["admin"], 200) },
+  // a well-formed id nobody received: admins learn it is not there, everyone else is refused first
+  { file: "app/api/v1/mailbox/[id]/route.ts", method: "GET", path: () => "/api/v1/mailbox/20250101t000000000z-00000000", expect: ONLY(["admin"], 404) },
   { file: "app/api/auth/[...nextauth]/route.ts", method: "GET", path: () => "/api/auth/session", expect: { anonymous: 200, viewer: 200, admin: 200 } },
   // a credentials post without a valid CSRF token is turned away by next-auth with a redirect, never a session
   { file: "app/api/auth/[...nextauth]/route.ts", method: "POST", path: () => "/api/auth/callback/credentials", body: () => "csrfToken=forged&email=a%40b.example&password=x", headers: { "content-type": "application/x-www-form-urlencoded" }, expect: { anonymous: 302 } },
+  // ensembles and runs (spec engineer): reads need group membership (coordinators and admins see all); cancel/resubmit act on a
+  // fresh group-A ensemble owned by its researcher (owner, leading PI, admin may); submit of an invalid spec passes the guard, then 422
+  { file: "app/api/v1/schemas/ensemble-spec/route.ts", method: "GET", path: () => "/api/v1/schemas/ensemble-spec", expect: { anonymous: 200, viewer: 200, researcher: 200, pi: 200, coordinator: 200, admin: 200 } },
+  { file: "app/api/v1/ensembles/route.ts", method: "GET", path: () => "/api/v1/ensembles?pageSize=5&sort=name&order=asc", expect: ALL(200) },
+  { file: "app/api/v1/ensembles/route.ts", method: "POST", path: () => "/api/v1/ensembles", body: () => ({ ...matrixSpec(), replicas: 0 }), expect: ONLY(["researcher", "pi", "admin"], 422) },
+  { file: "app/api/v1/ensembles/preview/route.ts", method: "POST", path: () => "/api/v1/ensembles/preview", body: () => matrixSpec(), expect: ONLY(["researcher", "pi", "admin"], 200) },
+  { file: "app/api/v1/ensembles/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, false)).id}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
+  { file: "app/api/v1/ensembles/[id]/estimates/route.ts", method: "GET", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, false)).id}/estimates?format=csv`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
+  { file: "app/api/v1/runs/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/runs/${(await db().Run.findOne({ where: { ensembleId: (await matrixEnsemble(fx, false)).id } }))!.id}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
+  { file: "app/api/v1/ensembles/[id]/cancel/route.ts", method: "POST", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, false)).id}/cancel`, expect: { anonymous: 401, viewer: 403, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 403, admin: 200 } },
+  { file: "app/api/v1/ensembles/[id]/resubmit/route.ts", method: "POST", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, true)).id}/resubmit`, expect: { anonymous: 401, viewer: 403, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 403, admin: 200 } },
 ];
 
 // A tiny valid ising2d spec for the ensemble actions (placement problems are listed by preview, not thrown).
