@@ -41,7 +41,7 @@ export default async function MailboxPage({ searchParams }: { searchParams: Sear
       <PageHeader title="Mailbox" purpose="Every e-mail Ergodex sent, as the local mail server received it." />
       <MailSearch q={q} />
       {total === 0 ? <MailboxEmpty q={q} server={`127.0.0.1:${env.smtp.port}`} /> : (
-        <div className="grid gap-4 lg:grid-cols-[minmax(0,1fr)_minmax(0,1.2fr)] items-start">
+        <div className="grid gap-4 lg:grid-cols-[minmax(0,1.15fr)_minmax(0,1fr)] items-start">
           <div>
             <MailList messages={data} q={q} page={page} open={open} />
             <nav aria-label="Pages" className="flex items-center justify-between pt-3 text-sm text-ink-soft">
