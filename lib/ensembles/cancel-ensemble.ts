@@ -7,6 +7,7 @@ import type { Identity } from "@/lib/auth/identity";
 import { settleRun } from "@/lib/allocations/settle-run";
 import { enqueue } from "@/lib/queue/enqueue";
 import { transitionRun } from "@/lib/runs/transition-run";
+import { afterRunFinal } from "@/lib/runs/after-run-final";
 import { db } from "@/models";
 import { lockEnsembleForAct } from "./ensemble-target";
 
@@ -25,7 +26,7 @@ export async function cancelEnsemble(audit: AuditSource, who: Identity, ensemble
   return m.sequelize.transaction(async (transaction) => {
     const ensemble = await lockEnsembleForAct(who, ensembleId, transaction);
     const open = await m.Run.findAll({
-      where: { ensembleId, state: { [Op.in]: ["queued", "dispatched", "running"] } }, attributes: ["id", "state"], order: [["id", "ASC"]], transaction,
+      where: { ensembleId, state: { [Op.in]: ["queued", "dispatched", "running"] } }, attributes: ["id", "state", "pointId", "ensembleId", "dispatchToken"], order: [["id", "ASC"]], transaction,
     });
     if (open.length === 0) throw new AppError("conflict", `ensemble "${ensemble.name}" has no queued, dispatched or running runs to cancel`, { ensembleId });
     const queued = open.filter((r) => r.state === "queued");
@@ -35,11 +36,15 @@ export async function cancelEnsemble(audit: AuditSource, who: Identity, ensemble
       released += (await settleRun(run.id, { transaction, note: `run ${run.id} cancelled before dispatch` })).released;
     }
     const onCluster = open.length - queued.length;
-    const stillOpen = await m.Run.count({ where: { ensembleId, state: { [Op.notIn]: ["done", "failed", "cancelled"] } }, transaction });
-    await ensemble.update({ state: "cancelled", finishedAt: stillOpen === 0 ? new Date() : null }, { transaction });
-    if (onCluster > 0) await enqueue("cancel-runs", { ensembleId }, { transaction });
+    await ensemble.update({ state: "cancelled" }, { transaction });
+    // Points that lost runs may now be complete (estimates), and the ensemble closes if nothing is open.
+    const perPoint = new Map(queued.map((r) => [r.pointId, r]));
+    for (const run of perPoint.values()) await afterRunFinal(run, { transaction });
+    // A queued run with a dispatch token may be on its way to the cluster: the broker checks for it too.
+    const inFlight = queued.some((r) => r.dispatchToken !== null);
+    if (onCluster > 0 || inFlight) await enqueue("cancel-runs", { ensembleId }, { transaction });
     await recordAudit(audit, "ensemble.cancel", { type: "ensemble", id: ensembleId, groupId: ensemble.groupId },
       { cancelled: queued.length, onCluster, releasedCoreHours: Math.round(released * 1e4) / 1e4 }, transaction);
-    return { ensembleId, cancelled: queued.length, onCluster, releasedCoreHours: Math.round(released * 1e4) / 1e4, cancelJobQueued: onCluster > 0 };
+    return { ensembleId, cancelled: queued.length, onCluster, releasedCoreHours: Math.round(released * 1e4) / 1e4, cancelJobQueued: onCluster > 0 || inFlight };
   });
 }

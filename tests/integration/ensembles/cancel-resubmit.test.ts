@@ -62,6 +62,16 @@ describe("cancelEnsemble", () => {
     expect(await codeOf(cancelEnsemble(audit(who), who, ensembleId))).toBe("conflict");
   });
 
+  it("a queued run that already carries a dispatch token (a dispatch in flight) also gets a cancel-runs job", async () => {
+    const group = await makeGroup();
+    await makeAllocation(group, 100);
+    const { who } = await person("researcher", group);
+    const { ensembleId, runIds } = await submitEnsemble(audit(who), who, isingSpec({ temps: [2.2], replicas: 1 }));
+    await t.models.Run.update({ dispatchToken: crypto.randomUUID() }, { where: { id: runIds[0] } });
+    expect(await cancelEnsemble(audit(who), who, ensembleId)).toMatchObject({ cancelled: 1, onCluster: 0, cancelJobQueued: true });
+    expect((await jobs("cancel-runs")).filter((j) => j.data.ensembleId === ensembleId)).toHaveLength(1);
+  });
+
   it("only the owner, a PI leading the group or an admin may cancel; outsiders are told it does not exist", async () => {
     const group = await makeGroup();
     await makeAllocation(group, 100);
