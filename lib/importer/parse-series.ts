@@ -13,7 +13,25 @@ export const MAX_SERIES_BYTES = 1 << 30;
 const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 const NON_FINITE = /^[+-]?(?:nan|inf|infinity)$/i;
 
+// Fast path first: Number() plus the few cases where it is laxer than DECIMAL (whitespace around,
+// "0x"/"0o"/"0b" prefixes, "Infinity"); only a value failing it goes through the regex for a message.
+function plainDecimal(text: string, v: number): boolean {
+  if (!Number.isFinite(v) || text.length === 0) return false;
+  const first = text.charCodeAt(0);
+  const last = text.charCodeAt(text.length - 1);
+  const firstOk = (first >= 48 && first <= 57) || first === 45 || first === 43 || first === 46;
+  const lastOk = (last >= 48 && last <= 57) || last === 46;
+  if (!firstOk || !lastOk) return false;
+  if (first === 48 && text.length > 1) {
+    const second = text.charCodeAt(1) | 32;
+    if (second === 120 || second === 111 || second === 98) return false; // x, o, b
+  }
+  return true;
+}
+
 function parseField(text: string, where: BundleLocation): number {
+  const fast = Number(text);
+  if (plainDecimal(text, fast)) return fast;
   if (!DECIMAL.test(text)) {
     if (NON_FINITE.test(text)) throw bundleError(where, `${JSON.stringify(text)} is not finite (NaN and ±Infinity are not allowed)`);
     throw bundleError(where, `${JSON.stringify(text)} is not a decimal number`);
