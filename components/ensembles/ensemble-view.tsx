@@ -1,6 +1,6 @@
 "use client";
 import { useEnsemble, isLive, type EnsembleDetail } from "@/lib/hooks/use-ensemble";
-import { coreHours } from "@/lib/format";
+import { coreHoursFine as coreHours } from "./core-hours";
 import { Card } from "@/components/ui/card";
 import { StateBadge } from "@/components/ui/state-badge";
 import { Time } from "@/components/ui/time";
@@ -9,6 +9,7 @@ import { CollapsibleJson } from "@/components/ui/collapsible-json";
 import { RunGrid } from "./run-grid";
 import { EnsembleActions } from "./ensemble-actions";
 
+const plural = (n: number, w: string) => `${n.toLocaleString("en-GB")} ${w}${n === 1 ? "" : "s"}`;
 const RUN_STATES = ["queued", "dispatched", "running", "collecting", "done", "failed", "cancelled"];
 const CANCELLABLE = ["queued", "dispatched", "running"]; // collecting runs have finished computing
 
@@ -61,7 +62,7 @@ export function EnsembleView({ initial, canAct }: { initial: EnsembleDetail; can
         </Card>
       </div>
 
-      <Card title={`Runs · ${e.points.length.toLocaleString("en-GB")} points × ${e.replicas} replicas`}>
+      <Card title={`Runs · ${plural(e.points.length, "point")} × ${plural(e.replicas, "replica")}`}>
         <RunGrid points={e.points} />
         <p className="text-xxs text-ink-faint mt-2">Hover a run for its id and progress; open it for its events, output and estimates.</p>
       </Card>

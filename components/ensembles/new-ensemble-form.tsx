@@ -63,20 +63,20 @@ export function NewEnsembleForm({ samplers, example, seed }: { samplers: Sampler
         {mode === "file" ? <SpecFileInput text={text} onText={(t) => { setRefusal(null); setText(t); }} /> : (
           <>
             <div className="grid gap-3 sm:grid-cols-2">
-              <Field label="Name *" error={issuesAt(issues, "/name")}><input value={draft.name} onChange={(e) => update({ name: e.target.value })} className={inputClass} placeholder="ising2d L=16 temperature scan" /></Field>
+              <Field label="Name *" error={issuesAt(issues, "/name")}><input aria-label="Name" value={draft.name} onChange={(e) => update({ name: e.target.value })} className={inputClass} placeholder="ising2d L=16 temperature scan" /></Field>
               <Field label="Sampler *" hint={sampler?.description ?? undefined} error={issuesAt(issues, "/sampler")}>
-                <select value={draft.sampler} onChange={(e) => { const s = samplers.find((x) => samplerKey(x) === e.target.value); update({ sampler: e.target.value, fixed: blankDraft(s, "").fixed, scan: [] }); }} className={inputClass}>
+                <select aria-label="Sampler" value={draft.sampler} onChange={(e) => { const s = samplers.find((x) => samplerKey(x) === e.target.value); update({ sampler: e.target.value, fixed: blankDraft(s, "").fixed, scan: [] }); }} className={inputClass}>
                   {samplers.map((s) => <option key={samplerKey(s)} value={samplerKey(s)}>{s.name} {s.version}</option>)}
                 </select>
               </Field>
             </div>
-            <Field label="Description" error={issuesAt(issues, "/description")}><input value={draft.description} onChange={(e) => update({ description: e.target.value })} className={inputClass} /></Field>
+            <Field label="Description" error={issuesAt(issues, "/description")}><input aria-label="Description" value={draft.description} onChange={(e) => update({ description: e.target.value })} className={inputClass} /></Field>
             <SamplerFields draft={draft} sampler={sampler} issues={issues} update={update} />
             <RunFields draft={draft} issues={issues} update={update} />
           </>
         )}
       </div>
-      <div className="space-y-3">
+      <div className="space-y-3 lg:sticky lg:top-4 self-start">
         <PreviewPanel state={preview} />
         {refusal ? <p role="alert" className="text-sm text-danger" data-testid="submit-error">Not submitted: {refusal}</p> : null}
         <Button type="submit" disabled={!ready || submitting} className="w-full justify-center">{submitting ? "Submitting…" : "Submit ensemble"}</Button>

@@ -1,5 +1,5 @@
 "use client";
-import { coreHours } from "@/lib/format";
+import { coreHoursFine as coreHours } from "./core-hours";
 import type { PreviewState } from "@/lib/hooks/use-spec-preview";
 import type { SubmissionPreview } from "@/lib/ensembles/preview-submission";
 
@@ -10,7 +10,7 @@ export type SpecPreview = SubmissionPreview;
 export function PreviewPanel({ state }: { state: PreviewState<SpecPreview> }) {
   const shown = state.status === "checking" ? state.last : state;
   return (
-    <section aria-label="Preview" data-testid="preview" className="rounded-lg border border-line bg-paper-raised p-4 text-sm sticky top-4">
+    <section aria-label="Preview" data-testid="preview" className="rounded-lg border border-line bg-paper-raised p-4 text-sm">
       <h2 className="text-xs font-medium uppercase tracking-wide text-ink-soft mb-3 flex justify-between">
         Preview <span className="normal-case tracking-normal text-ink-faint" aria-live="polite">{state.status === "checking" ? "checking…" : ""}</span>
       </h2>

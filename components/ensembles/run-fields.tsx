@@ -11,7 +11,7 @@ type Props = { draft: Draft; issues: Issues; update: (d: Partial<Draft>) => void
 function Num({ label, k, path, hint, draft, issues, update }: Props & { label: string; k: keyof Draft; path: string; hint?: string }) {
   return (
     <Field label={label} hint={hint} error={issuesAt(issues, path)}>
-      <input value={String(draft[k])} onChange={(e) => update({ [k]: e.target.value } as Partial<Draft>)} inputMode="numeric" className={`${inputClass} num`} />
+      <input aria-label={label} value={String(draft[k])} onChange={(e) => update({ [k]: e.target.value } as Partial<Draft>)} inputMode="numeric" className={`${inputClass} num`} />
     </Field>
   );
 }
@@ -32,7 +32,7 @@ export function RunFields(props: Props) {
         <div className="mt-3 max-w-md">
           <Field label="Master seed" hint="unsigned 64-bit integer; every run's seed is derived from it" error={issuesAt(issues, "/seed")}>
             <span className="flex gap-2">
-              <input value={draft.seed} onChange={(e) => update({ seed: e.target.value })} className={`${inputClass} mono`} />
+              <input aria-label="Master seed" value={draft.seed} onChange={(e) => update({ seed: e.target.value })} className={`${inputClass} mono`} />
               <button type="button" className="text-xs text-accent hover:underline whitespace-nowrap" onClick={() => update({ seed: randomSeed() })}>new seed</button>
             </span>
           </Field>
@@ -69,7 +69,7 @@ export function RunFields(props: Props) {
         </div>
       </fieldset>
       <Field label="Tags" hint="comma-separated, e.g. critical-scan, L16" error={issuesAt(issues, "/tags")}>
-        <input value={draft.tags} onChange={(e) => update({ tags: e.target.value })} className={inputClass} />
+        <input aria-label="Tags" value={draft.tags} onChange={(e) => update({ tags: e.target.value })} className={inputClass} />
       </Field>
     </>
   );

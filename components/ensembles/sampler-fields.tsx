@@ -27,8 +27,9 @@ const range = (p: ParamSchema) => {
 
 /** The sampler's parameters: each one either fixed (an input) or scanned (a row below). */
 export function SamplerFields({ draft, sampler, issues, update }: { draft: Draft; sampler: SamplerOption | undefined; issues: Issues; update: (d: Partial<Draft>) => void }) {
-  const props = Object.entries(sampler?.paramsSchema.properties ?? {});
   const required = new Set(sampler?.paramsSchema.required ?? []);
+  // required parameters first, each group in the schema's order
+  const props = Object.entries(sampler?.paramsSchema.properties ?? {}).sort(([a], [b]) => Number(required.has(b)) - Number(required.has(a)));
   const scanned = new Set(draft.scan.map((a) => a.param));
   const setScan = (i: number, change: Partial<ScanDraft>) => update({ scan: draft.scan.map((a, k) => (k === i ? { ...a, ...change } : a)) });
   const free = props.map(([k]) => k).filter((k) => !scanned.has(k));

@@ -4,8 +4,12 @@ import type { RunEstimate } from "@/lib/hooks/use-run";
 const tau = (e: RunEstimate) => (e.tauInt === null ? "—" : e.tauIntError ? concise(e.tauInt, e.tauIntError) : formatPlain(e.tauInt, 4));
 
 /** A run's estimates in concise notation (full values on hover), τ_int beside every error. */
-export function EstimatesTable({ estimates }: { estimates: RunEstimate[] }) {
-  if (estimates.length === 0) return <p className="text-sm text-ink-soft">No estimates yet: they are computed when the run&apos;s series has been imported.</p>;
+export function EstimatesTable({ estimates, state }: { estimates: RunEstimate[]; state: string }) {
+  if (estimates.length === 0) {
+    const why = state === "failed" || state === "cancelled" ? `This run ended ${state} before its series was imported, so there is nothing to estimate. Resubmit it from its ensemble.`
+      : "No estimates yet: they are computed when the run's series has been imported.";
+    return <p className="text-sm text-ink-soft">{why}</p>;
+  }
   return (
     <table className="data" data-testid="estimates">
       <thead><tr><th>Observable</th><th className="n">Estimate</th><th className="n">τ<sub>int</sub></th><th className="n">N</th><th className="n">Therm. cut</th><th className="n">Window</th><th>Method</th></tr></thead>

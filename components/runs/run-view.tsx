@@ -1,7 +1,7 @@
 "use client";
 import Link from "next/link";
 import { useRun, type RunDetail } from "@/lib/hooks/use-run";
-import { coreHours } from "@/lib/format";
+import { coreHoursFine as coreHours } from "@/components/ensembles/core-hours";
 import { Card } from "@/components/ui/card";
 import { StateBadge, STATE_BG } from "@/components/ui/state-badge";
 import { ProgressBar } from "@/components/ui/progress-bar";
@@ -61,7 +61,7 @@ export function RunView({ initial }: { initial: RunDetail }) {
           </dl>
         </Card>
       </div>
-      <Card title="Estimates"><EstimatesTable estimates={r.estimates} /></Card>
+      <Card title="Estimates"><EstimatesTable estimates={r.estimates} state={r.state} /></Card>
       <Card title="Events"><EventsTimeline events={r.events} /></Card>
     </div>
   );

@@ -8,7 +8,8 @@ import type { Browser, BrowserContext, Page } from "playwright-core";
 import { launch, newPage, signInAs, shot } from "./support/browser";
 import { stateCount, until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
-import { coreHours, concise } from "@/lib/format";
+import { concise } from "@/lib/format";
+import { coreHoursFine } from "@/components/ensembles/core-hours";
 import { deriveSeed, expandSpec, parseSpec } from "@/lib/spec";
 import { EXAMPLE_SPEC } from "@/components/ensembles/example-spec";
 import { hashPassword } from "@/lib/auth/passwords";
@@ -56,7 +57,7 @@ describe("ensembles in the browser", () => {
     await shot(page, "ensembles-list-before");
     await page.getByRole("link", { name: "New ensemble" }).first().click();
     await page.getByTestId("new-ensemble").waitFor();
-    await page.getByLabel("Name *").fill(tinyName);
+    await page.getByLabel("Name", { exact: true }).fill(tinyName);
     await page.getByLabel("L", { exact: true }).fill("8");
     await page.getByRole("button", { name: "+ Scan a parameter" }).click();
     await expect(page.getByLabel("scan 1 parameter").inputValue()).resolves.toBe("T");
@@ -77,7 +78,7 @@ describe("ensembles in the browser", () => {
     expect(await page.getByTestId("preview-points").textContent()).toBe("2");
     expect(await page.getByTestId("preview-runs").textContent()).toBe("4");
     // cores × wall time × runs = 1 × 5/60 h × 4
-    expect(await page.getByTestId("preview-core-hours").textContent()).toBe(`${coreHours((1 * 5 * 4) / 60)} core-h`);
+    expect(await page.getByTestId("preview-core-hours").textContent()).toBe(`${coreHoursFine((1 * 5 * 4) / 60)} core-h`);
     const master = await page.getByLabel("Master seed").inputValue();
     const seedRows = await page.getByTestId("preview-seeds").locator("tbody tr").allTextContents();
     expect(seedRows).toHaveLength(4);
@@ -89,7 +90,7 @@ describe("ensembles in the browser", () => {
     tinyId = ENSEMBLE_URL.exec(page.url())![1];
     await page.getByTestId("run-grid").waitFor();
     expect(await page.getByTestId("run-grid").locator("[data-run]").count()).toBe(4);
-    expect(await page.getByTestId("reserved").textContent()).toBe(coreHours((1 * 5 * 4) / 60));
+    expect(await page.getByTestId("reserved").textContent()).toBe(coreHoursFine((1 * 5 * 4) / 60));
   }, 60_000);
 
   it("a spec file pasted into the form submits the deliberately failing ensemble", async () => {
@@ -172,6 +173,11 @@ describe("ensembles in the browser", () => {
       await adminPage.goto("/mailbox");
       return (await adminPage.locator("main").textContent())?.includes(failingName);
     }, 60_000, 3_000);
+    // the digest says which ensemble and why, and links to it
+    await adminPage.getByTestId("mailbox").getByText(failingName).first().click();
+    const text = adminPage.getByTestId("mail-text");
+    await until("the e-mail's text", async () => (await text.textContent())?.includes(`/ensembles/${failingId}`), 15_000, 500);
+    expect(await text.textContent()).toContain("wall");
     await shot(adminPage, "mailbox-failure");
     await context.close();
   }, 240_000);
