@@ -13,9 +13,13 @@ export type Placement = { sampler: Sampler; allocation: Allocation; cluster: Clu
 
 const refuse = (issue: FieldIssue): never => { throw new AppError("invalid", `${issue.path} ${issue.message}`, { issues: [issue] }); };
 
-/** Core-hours one run reserves: cores × wall time, rounded to the ledger's 4 decimals. */
+/**
+ * Core-hours one run reserves: cores × wall time, rounded *up* to the ledger's 4 decimals, so the
+ * reservation always covers a run that uses its whole wall time (settlement caps charges at it).
+ */
 export function coreHoursPerRun(spec: Pick<EnsembleSpec, "resources">): number {
-  return Math.round(spec.resources.cores * (spec.resources.wallMinutes / 60) * 1e4) / 1e4;
+  // The 1e-6 keeps float noise (e.g. 0.30000000000000004 × 1e4) from rounding an exact value up.
+  return Math.ceil(spec.resources.cores * spec.resources.wallMinutes * 1e4 / 60 - 1e-6) / 1e4;
 }
 
 /** Refuse callers who may not submit at all (the route guard checks this too; server actions and jobs call lib directly). */
