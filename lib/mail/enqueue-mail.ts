@@ -58,6 +58,8 @@ export async function enqueueMail(input: MailInput, options: { transaction?: Tra
     if (inserted.length === 0) {
       const [existing] = await sequelize.query<{ id: string }>(
         "SELECT id::text AS id FROM outbox_messages WHERE dedupe_key = $1", { type: QueryTypes.SELECT, transaction, bind: [mail.dedupeKey] });
+      // Only a concurrent delete between the two statements could leave nothing; say so rather than crash on undefined.
+      if (!existing) throw new Error(`outbox message with dedupeKey ${JSON.stringify(mail.dedupeKey)} vanished while being written`);
       return { id: existing.id, created: false };
     }
     const id = inserted[0].id;
