@@ -177,9 +177,9 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
     await this.connection.sftp<void>((s, cb) => s.writeFile(`${dir}/job.sh`, script, cb));
     this.listing.learnGroup(groupId, tasks);
     await this.submitGate.pass();
-    this.schedulerCalls.sbatch++;
     // Not retried on a dropped connection: the next submit finds the array by its job name instead.
     const r = await this.connection.exec(`sbatch --parsable ${dir}/job.sh`, { idempotent: false });
+    this.schedulerCalls.sbatch++;
     const m = /^(\d+)(;\S+)?\s*$/.exec(r.stdout);
     if (r.code !== 0 || !m) {
       const message = `sbatch refused the array for ${ok.length} runs (exit ${r.code}): ${(r.stderr || r.stdout).trim().slice(0, 300)}`;
@@ -220,12 +220,12 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
   private async statusFrom(rows: Awaited<ReturnType<SchedulerListing["get"]>>, runIds?: string[]): Promise<RunStatus[]> {
     const view = await this.listing.view(rows);
     for (const [id, v] of view) if (this.submitted.get(id)?.token === v.task.token) this.submitted.delete(id);
-    const ids = runIds ?? [
+    const ids = runIds ?? [...new Set([
       ...[...view].filter(([, v]) => ACTIVE.has(mapSchedulerState(v.row).state)).map(([id]) => id),
-      ...[...this.submitted.keys()].filter((id) => !view.has(id)),
-    ];
+      ...this.submitted.keys(),
+    ])];
     const root = await this.workRoot();
-    const look = ids.filter((id) => !(view.get(id)?.row.state === "PENDING") && !(this.submitted.has(id) && !view.has(id)));
+    const look = ids.filter((id) => !this.submitted.has(id) && view.get(id)?.row.state !== "PENDING");
     const folders = look.length
       ? await this.inspect(look.map((id) => { const v = view.get(id); return { runId: id, errFile: v ? `${groupDirOf(root, v.groupId)}/${v.task.index}.err` : null }; }))
       : new Map<string, RunFolderInfo>();
@@ -235,12 +235,13 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
   private statusOf(runId: string, v: RunTaskView | undefined, f: RunFolderInfo | undefined): RunStatus {
     const attempts = f ? [...f.tokens.values()].filter((t) => t.startedAt).length : 0;
     const base = { ...blankStatus(runId), progress: f?.progress ?? null, stderrTail: f?.stderrTail ?? "", attempt: attempts || null };
+    // Submitted by us after the listing was taken (a resubmission may still show its old task there).
+    const mine = this.submitted.get(runId);
+    if (mine) return { ...base, state: "queued", failure: null, jobId: mine.jobId, dispatchToken: mine.token, submittedAt: mine.at };
     if (v) {
       const m = mapSchedulerState(v.row, base.stderrTail);
       return { ...base, ...m, jobId: v.row.jobId, dispatchToken: v.task.token, submittedAt: v.row.submittedAt, startedAt: v.row.startedAt, finishedAt: m.state === "queued" || m.state === "running" ? null : v.row.finishedAt };
     }
-    const mine = this.submitted.get(runId);
-    if (mine) return { ...base, state: "queued", failure: null, jobId: mine.jobId, dispatchToken: mine.token, submittedAt: mine.at };
     // Aged out of the listing: the latest marker in the run folder tells how the task went.
     const latest = f ? [...f.tokens.entries()].filter(([, t]) => t.startedAt).sort((a, b) => a[1].startedAt.localeCompare(b[1].startedAt)).pop() : undefined;
     if (!latest) return base;
@@ -260,14 +261,14 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
     runIds.forEach((id) => check(ID.test(id), `cancel: invalid run id "${id}"`));
     const view = await this.listing.view(await this.listing.get());
     const jobIds = runIds.flatMap((id) => {
-      const v = view.get(id);
-      if (v) return ACTIVE.has(mapSchedulerState(v.row).state) ? [v.row.jobId] : [];
       const mine = this.submitted.get(id);
-      return mine ? [mine.jobId] : [];
+      if (mine) return [mine.jobId];
+      const v = view.get(id);
+      return v && ACTIVE.has(mapSchedulerState(v.row).state) ? [v.row.jobId] : [];
     });
     for (const ids of chunks(jobIds, IDS_PER_CALL)) {
-      this.schedulerCalls.scancel++;
       const r = await this.connection.exec(`scancel ${ids.join(" ")}`, { idempotent: true });
+      this.schedulerCalls.scancel++;
       if (r.code !== 0) throw new ClusterProtocolError(`scancel failed with exit ${r.code}: ${r.stderr.trim().slice(0, 300)}`, r.code);
     }
     // The scheduler's own answer, taken when the query interval allows.
@@ -275,9 +276,9 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
   }
 
   async health(): Promise<ClusterHealth> {
-    this.schedulerCalls.sinfo++;
     const p = this.opts.partition ? ` --partition=${this.opts.partition}` : "";
     const r = await this.connection.exec(`sinfo --noheader${p} --format='%T|%C'`, { idempotent: true });
+    this.schedulerCalls.sinfo++;
     if (r.code !== 0) throw new ClusterProtocolError(`sinfo failed with exit ${r.code}: ${r.stderr.trim().slice(0, 300)}`, r.code);
     const lines = r.stdout.trim().split("\n").filter(Boolean).map((l) => l.split("|"));
     // %C is allocated/idle/other/total CPUs.
