@@ -38,8 +38,8 @@ beforeAll(async () => {
   // Pinned to a key that is not the node's: every connection must be refused.
   const other = crypto.createHash("sha256").update("not the node's key").digest("base64").replace(/=+$/, "");
   clusters.spoofed = await makeClusterRow(good.node, good.clientKey, { name: "spoofed", fingerprint: `SHA256:${other}` });
-  // The cluster's own wall-time limit (settings.maxWallSeconds) caps each attempt at 2 s.
-  clusters.short = await makeClusterRow(good.node, good.clientKey, { name: "short", settings: { maxWallSeconds: 2 } });
+  // The cluster's own wall-time limit (settings.maxWallSeconds) caps each attempt at 3 s.
+  clusters.short = await makeClusterRow(good.node, good.clientKey, { name: "short", settings: { maxWallSeconds: 3 } });
   broker = new BrokerProcess(t, { dataDir: tempDir("broker"), smtpPort: smtp.port, healthPort: await freePort() });
   await broker.start();
 });
@@ -146,9 +146,10 @@ describe("broker flow", () => {
   });
 
   it("a run stopped at the cluster's wall-time limit resumes from its checkpoint; its series is byte-identical to an uninterrupted run", async () => {
-    // L=16, 1000 + 2000×200 sweeps: several seconds of work, so a 2 s limit interrupts it several times.
+    // L=16, 1000 + 2000×150 sweeps: about 4 s of work on an idle machine, so a 3 s limit per attempt
+    // (startup included) interrupts it at least once, and a loaded machine still gains ≥ 1 s per attempt.
     const spec = isingSpec("short", people.allocationName, {
-      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 2000, interval: 200,
+      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 2000, interval: 150,
       resources: { cores: 1, wallMinutes: 1, memoryMb: 256 }, retry: { maxAttempts: 10, on: [], resumeOnWallTime: true },
     });
     const sub = await submit(people.researcher, spec);
