@@ -9,11 +9,7 @@ import type { EstimateProblem } from "./compute-run-estimates";
 import { writeEstimateVersions, type NewEstimate } from "./write-estimates";
 
 /** Options of {@link computePointEstimates}. */
-export type PointEstimatesOptions = {
-  transaction?: Transaction;
-  /** Runs to count as finished although not yet "done" (the importer passes the run it is importing). */
-  alsoRunIds?: string[];
-};
+export type PointEstimatesOptions = { transaction?: Transaction };
 
 /** What {@link computePointEstimates} stored; `unchanged` lists observables whose combination did not move. */
 export type PointEstimatesResult = { estimates: Estimate[]; unchanged: string[]; problems: EstimateProblem[] };
@@ -21,7 +17,9 @@ export type PointEstimatesResult = { estimates: Estimate[]; unchanged: string[];
 type RunRow = { observable: string; mean: number; error: number; n: number; therm_cut: number; run_id: string };
 
 /**
- * For each observable, combine the current run estimates of the point's done replicas with
+ * For each observable, combine the current run estimates of the point's finished replicas — runs
+ * that are done, or collecting with an accepted import (the run being imported in the caller's
+ * transaction, or one whose move to done is still under way when a sibling imports) — with
  * combineReplicas: weighted mean, error scaled by sqrt(max(1, χ²/dof)) (PDG convention, so a
  * scatter beyond the error bars widens them), chi2dof, and flagged when p < 0.01. A combination
  * equal to the current point estimate is not stored again, so calling this twice is harmless.
@@ -34,9 +32,10 @@ export async function computePointEstimates(pointId: string, options: PointEstim
   if (!point) throw new AppError("not_found", `parameter point ${pointId} does not exist`);
   const inputs = (await m.sequelize.query(
     `SELECT e.observable, e.mean, e.error, e.n, e.therm_cut, e.run_id FROM estimates e JOIN runs r ON r.id = e.run_id
-      WHERE e.scope = 'run' AND e.point_id = $1 AND e.is_current AND (r.state = 'done' OR r.id = ANY($2::uuid[]))
+      WHERE e.scope = 'run' AND e.point_id = $1 AND e.is_current
+        AND (r.state = 'done' OR (r.state = 'collecting' AND EXISTS (SELECT 1 FROM imports i WHERE i.run_id = r.id AND i.state = 'accepted')))
       ORDER BY e.observable, r.replica`,
-    { bind: [pointId, options.alsoRunIds ?? []], transaction, type: "SELECT" },
+    { bind: [pointId], transaction, type: "SELECT" },
   )) as RunRow[];
   const current = await m.Estimate.findAll({ where: { scope: "point", pointId, isCurrent: true }, transaction });
   const currentBy = new Map(current.map((e) => [e.observable, e]));

@@ -60,6 +60,6 @@ export async function writeImport(input: WriteImportInput, transaction: Transact
 
   const byName = new Map(series.columns.map((c, k) => [c, series.values[k]] as const));
   const runEstimates = await computeRunEstimates(input.runId, { transaction, series: byName });
-  const pointEstimates = await computePointEstimates(input.pointId, { transaction, alsoRunIds: [input.runId] });
+  const pointEstimates = await computePointEstimates(input.pointId, { transaction });
   return { status: "imported", importId: record.id, seriesRows, problems: [...runEstimates.problems, ...pointEstimates.problems] };
 }

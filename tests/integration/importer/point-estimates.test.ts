@@ -15,8 +15,12 @@ let point: ParameterPoint;
 let runs: Run[];
 const bundles: string[] = [];
 
+// As the broker does: a finished run is collecting while its bundle is imported, done afterwards.
+async function collect(run: Run) {
+  for (const state of ["dispatched", "collecting"] as const) await transitionRun(run.id, state, { cause: "test.collect" });
+}
 async function markDone(run: Run) {
-  for (const state of ["dispatched", "collecting", "done"] as const) await transitionRun(run.id, state, { cause: "test.collect" });
+  await transitionRun(run.id, "done", { cause: "test.collect" });
 }
 
 async function current(observable: string) {
@@ -41,6 +45,7 @@ beforeAll(async () => {
 
 describe("computePointEstimates", () => {
   it("with one replica passes its estimate through, without chi²", async () => {
+    await collect(runs[0]);
     await importBundle({ runId: runs[0].id, dir: copyBundle(bundles[0]), source: "cluster" });
     const { now } = await current("e");
     const [r0] = await runEstimates("e", [runs[0].id]);
@@ -50,6 +55,7 @@ describe("computePointEstimates", () => {
 
   it("with two replicas gives the inverse-variance mean, its error and chi²/dof", async () => {
     await markDone(runs[0]);
+    await collect(runs[1]);
     await importBundle({ runId: runs[1].id, dir: copyBundle(bundles[1]), source: "cluster" });
     for (const observable of ["e", "absM", "m2", "U4", "C"]) {
       const reps = await runEstimates(observable, [runs[0].id, runs[1].id]);
@@ -71,7 +77,6 @@ describe("computePointEstimates", () => {
   });
 
   it("stores nothing new when the combination has not changed", async () => {
-    // The importer counted runs[1] before it was done; once it is, recomputing finds the same set.
     await markDone(runs[1]);
     const before = await db().Estimate.count({ where: { scope: "point" } });
     const result = await computePointEstimates(point.id);
@@ -90,6 +95,7 @@ describe("computePointEstimates", () => {
         lines[i] = cells.join(",");
       }
     });
+    await collect(runs[2]);
     await importBundle({ runId: runs[2].id, dir, source: "cluster" });
     const reps = await runEstimates("e", runs.map((r) => r.id));
     const w = reps.map((r) => 1 / r.error ** 2);
@@ -104,5 +110,24 @@ describe("computePointEstimates", () => {
     expect(now.chi2dof!).toBeGreaterThan(Math.log(100));
     expect(now.mean).toBeCloseTo(mean, 12);
     expect(now.error).toBeCloseTo(Math.sqrt(1 / sw) * Math.sqrt(chi2 / 2), 12);
+  });
+});
+
+describe("which replicas count", () => {
+  it("leaves out runs that are neither done nor collecting with an accepted import", async () => {
+    const group = await makeGroup();
+    const owner = await makeUser("researcher", group);
+    const sampler = await db().Sampler.findOne({ where: { name: "ising2d" } });
+    const { runs: two, points } = await makeEnsemble({ owner, group, sampler: sampler!, points: [PARAMS], replicas: 2 });
+    const dirs = two.map((run) => sampleBundle(run, PARAMS, { measurements: 300 }));
+    await collect(two[0]);
+    await importBundle({ runId: two[0].id, dir: dirs[0], source: "cluster" });
+    // Imported while still queued (no broker in between): its estimates exist but it is not finished.
+    await importBundle({ runId: two[1].id, dir: dirs[1], source: "cluster" });
+    const now = await db().Estimate.findOne({ where: { pointId: points[0].id, scope: "point", observable: "e", isCurrent: true } });
+    const [r0] = await runEstimates("e", [two[0].id]);
+    expect(now).toMatchObject({ mean: r0.mean, chi2dof: null, n: r0.n });
+    await transitionRun(two[1].id, "cancelled", { cause: "test.cancel" });
+    expect((await computePointEstimates(points[0].id)).estimates).toHaveLength(0);
   });
 });
