@@ -12,6 +12,7 @@ import "server-only";
 import { QueryTypes, type Transaction } from "sequelize";
 import { AppError } from "@/lib/errors";
 import { modelsFor } from "@/lib/db/models-for";
+import { enqueue } from "@/lib/queue/enqueue";
 
 /** What a settlement wrote (zeros when there was nothing outstanding). */
 export type Settlement = { runId: string; charged: number; released: number; usedCoreHours: number; alreadySettled: boolean };
@@ -50,6 +51,8 @@ export async function settleRun(runId: string, options: { transaction?: Transact
     if (charge > 0) rows.push({ ...entry, kind: "charge" as const, coreHours: hours(charge), note });
     if (release > 0) rows.push({ ...entry, kind: "release" as const, coreHours: hours(release), note });
     await LedgerEntry.bulkCreate(rows, { transaction });
+    // The allocation's use moved: its 80 %/100 % alerts are re-checked (one waiting check per allocation).
+    await enqueue("check-allocation", { allocationId: ensemble.allocationId }, { transaction });
     return { ...base, charged: hours(charge), released: hours(release), alreadySettled: false };
   };
   return options.transaction ? work(options.transaction) : sequelize.transaction(work);

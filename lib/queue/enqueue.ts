@@ -9,7 +9,10 @@ import { policyFor } from "./queues";
 export type EnqueueOptions = {
   /** Insert the job through this transaction: it exists only if the transaction commits. */
   transaction?: Transaction | null;
-  /** On "short" queues, at most one waiting job per key (later sends are dropped and return null). */
+  /**
+   * On "short" queues, at most one waiting job per key (later sends are dropped and return null);
+   * the key defaults to the payload's JSON there.
+   */
   singletonKey?: string;
   /** Delay in seconds, or a moment. */
   startAfter?: number | Date;
@@ -36,11 +39,15 @@ export async function enqueue(name: string, data: object, options: EnqueueOption
   await ensureQueue(name); // outside the caller's transaction: DDL must not roll back with it
   const boss = await getBoss();
   const send: PgBoss.SendOptions = {};
-  if (options.singletonKey !== undefined) send.singletonKey = options.singletonKey;
+  const dedupes = policyFor(name) !== "standard";
+  // On a deduplicating queue a job without a key would share the key "" with every other one:
+  // the payload itself is the natural key (one waiting check per allocation, and so on).
+  const key = options.singletonKey ?? (dedupes ? JSON.stringify(data) : undefined);
+  if (key !== undefined) send.singletonKey = key;
   if (options.startAfter !== undefined) send.startAfter = options.startAfter;
   if (options.transaction) send.db = transactionDb(options.transaction);
   const id = await boss.send(name, data, send);
-  if (id === null && !(options.singletonKey !== undefined && policyFor(name) !== "standard")) {
+  if (id === null && !dedupes) {
     throw new Error(`pg-boss did not queue "${name}" (no such queue, or an id collision)`);
   }
   return id;

@@ -10,9 +10,9 @@ export const QUEUE_NAMES = [
 export type QueueName = (typeof QUEUE_NAMES)[number];
 
 /**
- * pg-boss policy per queue. "short" keeps at most one *waiting* job per singletonKey (a job
- * without a key counts as key ""), which is what turns many failures of one ensemble into one
- * digest and many poll requests into one poll; senders to a "short" queue always pass a key.
+ * pg-boss policy per queue. "short" keeps at most one *waiting* job per singletonKey, which is
+ * what turns many failures of one ensemble into one digest, many poll requests into one poll and
+ * many settlements into one allocation check; enqueue() keys a job without a key by its payload.
  * Everything else is "standard": a singletonKey alone does not deduplicate there, and the
  * handlers are idempotent instead.
  */
@@ -23,7 +23,7 @@ export const QUEUE_POLICY: Record<QueueName, PgBoss.QueuePolicy> = {
   "cancel-runs": "standard",
   "send-mail": "standard",
   "failure-digest": "short",
-  "check-allocation": "standard",
+  "check-allocation": "short",
 };
 
 /** The policy a queue is created with (unknown names get pg-boss's standard policy). */

@@ -68,7 +68,7 @@ describe("enqueue", () => {
     expect(await boss.fetch("failure-digest")).toEqual([]);
   });
 
-  it("jobs of standard queues are not deduplicated without a policy that asks for it", async () => {
+  it("jobs of standard queues are not deduplicated", async () => {
     const a = await enqueue("collect-run", { runId: "r1" });
     const b = await enqueue("collect-run", { runId: "r1" });
     expect(a).not.toBe(b);
@@ -81,3 +81,14 @@ async function makeGroupIn(transaction: import("sequelize").Transaction): Promis
   const g = await t.models.Group.create({ slug, name: slug, institute: "Test" }, { transaction });
   return g.id;
 }
+
+describe("enqueue on a deduplicating queue without a key", () => {
+  it("keys the job by its payload: one waiting check per allocation", async () => {
+    const a = await enqueue("check-allocation", { allocationId: "a2" });
+    const b = await enqueue("check-allocation", { allocationId: "a2" });
+    const c = await enqueue("check-allocation", { allocationId: "a3" });
+    expect(a).not.toBeNull();
+    expect(b).toBeNull();
+    expect(c).not.toBeNull();
+  });
+});
