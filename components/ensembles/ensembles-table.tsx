@@ -4,7 +4,7 @@ import { useMemo } from "react";
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
 import { useEnsembles, type EnsembleRow } from "@/lib/hooks/use-ensembles";
 import { useUrlParams } from "@/lib/hooks/use-url-params";
-import { coreHours } from "@/lib/format";
+import { coreHoursFine as coreHours } from "./core-hours";
 import { StateBadge } from "@/components/ui/state-badge";
 import { Time } from "@/components/ui/time";
 import { Pagination } from "@/components/ui/pagination";

@@ -1,4 +1,4 @@
-import { STATE_BG, STATE_SHAPE } from "@/components/ui/state-badge";
+import { STATE_BG, STATE_SHAPE, STATE_TEXT } from "@/components/ui/state-badge";
 
 const ORDER = ["done", "collecting", "running", "dispatched", "queued", "failed", "cancelled"];
 
@@ -13,7 +13,7 @@ export function RunMix({ counts, total }: { counts: Record<string, number>; tota
       </div>
       <div className="text-xxs text-ink-soft num mt-0.5">
         {total.toLocaleString("en-GB")} runs{parts.length ? " · " : ""}
-        {parts.map((s, i) => <span key={s}>{i ? " " : ""}{STATE_SHAPE[s]} {counts[s]}</span>)}
+        {parts.map((s, i) => <span key={s}>{i ? " " : ""}<span aria-hidden className={STATE_TEXT[s]}>{STATE_SHAPE[s]}</span> {counts[s]}</span>)}
       </div>
       <span className="sr-only">{words}</span>
     </div>
