@@ -67,6 +67,21 @@ export function* seriesCopyBinary(runId: string, columns: readonly string[], val
   yield trailer;
 }
 
+let lz4: Promise<boolean> | undefined;
+
+/**
+ * Chunks of 32 KiB are TOASTed; PostgreSQL's default pglz compression of them costs about three
+ * times the rest of the COPY (bench/import.ts), lz4 a small fraction at a somewhat larger size.
+ * The column has no compression of its own, so the transaction-local default decides; servers
+ * built without lz4 keep pglz.
+ */
+async function preferLz4(client: pg.ClientBase): Promise<void> {
+  lz4 ??= client
+    .query(`SELECT 'lz4' = ANY(enumvals) AS ok FROM pg_settings WHERE name = 'default_toast_compression'`)
+    .then((r) => r.rows[0]?.ok === true, () => false);
+  if (await lz4) await client.query(`SET LOCAL default_toast_compression = 'lz4'`);
+}
+
 /**
  * COPY every column (the sweep column included) into `table` (default series) inside
  * `transaction`, as binary chunks of float8[]. Returns the number of rows written.
@@ -75,6 +90,7 @@ export async function copySeries(
   transaction: Transaction, runId: string, columns: readonly string[], values: readonly Float64Array[], table = "series",
 ): Promise<number> {
   const client = pgClientOf(transaction);
+  await preferLz4(client);
   const sink = client.query(copyStreams.from(`COPY ${table} (run_id, observable, chunk_index, start_row, "values") FROM STDIN WITH (FORMAT binary)`));
   await pipeline(Readable.from(seriesCopyBinary(runId, columns, values)), sink);
   return sink.rowCount;
