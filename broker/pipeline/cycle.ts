@@ -2,13 +2,15 @@
 // under its own lock, poll its runs, then dispatch queued ones into the free slots. Because
 // dispatch runs in every cycle, a queued run whose dispatch-runs job was lost is still sent.
 // A run stuck in collecting (its collect job lost with a killed broker) is queued for
-// collection again.
+// collection again, and about once a minute the mail sweeps requeue stranded e-mail and
+// unreported failures.
 import type { Logger } from "pino";
 import { QueryTypes } from "sequelize";
 import { db, type Cluster } from "@/models";
 import { adapterFor } from "@/lib/clusters/adapter-for";
 import { enqueue } from "@/lib/queue/enqueue";
 import { ClusterError, HostKeyMismatchError } from "@/broker/adapters/errors";
+import { requeueStrandedMail, requeueUnreportedFailures } from "@/lib/mail/sweep";
 import { withLock } from "./locks";
 import { pollCluster, type PollOutcome } from "./poll";
 import { dispatchCluster, type DispatchOutcome } from "./dispatch";
@@ -18,6 +20,9 @@ import { activeClusters } from "./cluster-runs";
 /** A host-key-mismatched cluster is probed at most this often (until someone pins the right key). */
 const MISMATCH_PROBE_MS = 30_000;
 const lastProbe = new Map<string, number>();
+/** The mail safety nets (lib/mail/sweep.ts) run about once a minute. */
+const MAIL_SWEEP_MS = 60_000;
+let lastMailSweep = 0;
 
 /** What a cycle did, per cluster name. */
 export type CycleOutcome = Record<string, { poll?: PollOutcome; dispatch?: DispatchOutcome; error?: string; skipped?: string }>;
@@ -68,6 +73,11 @@ export async function runCycle(log: Logger): Promise<CycleOutcome> {
     }
   }));
   await requeueStaleCollections(120);
+  if (Date.now() - lastMailSweep > MAIL_SWEEP_MS) {
+    lastMailSweep = Date.now();
+    await requeueStrandedMail();
+    await requeueUnreportedFailures();
+  }
   return Object.fromEntries(results);
 }
 

@@ -10,7 +10,7 @@ import type { SshConnection } from "@/broker/adapters/ssh-connection";
 import type { ClusterAdapter } from "@/broker/adapters/types";
 import { openSecret } from "@/lib/crypto/secret-box";
 import { log } from "@/lib/log";
-import { enqueueMail } from "@/lib/mail/enqueue-mail";
+import { alertClusterFault } from "@/lib/mail/cluster-fault";
 import { db, type Cluster } from "@/models";
 import { env } from "@/lib/env";
 
@@ -87,37 +87,20 @@ export function adapterRoundTrips(): Record<string, number> {
 }
 
 /**
- * Mark the cluster unhealthy with a note saying what was seen, and e-mail admins and
- * coordinators once per offending key (the dedupe key carries the fingerprint we were shown).
+ * Mark the cluster unhealthy with a note saying what was seen, and alert coordinators and admins
+ * (lib/mail/cluster-fault.ts: at most once per cluster per hour). A mismatch already on record
+ * for the same offending key is not recorded again.
  */
 export async function reportHostKeyMismatch(clusterId: string, err: HostKeyMismatchError): Promise<void> {
-  const { sequelize, Cluster, User } = db();
+  const { sequelize, Cluster } = db();
   await sequelize.transaction(async (transaction) => {
     const cluster = await Cluster.findByPk(clusterId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!cluster) return;
-    const note = `host key mismatch: the server presented ${err.actual}, ${err.expected} is pinned; connection refused (${new Date().toISOString()})`;
-    if (!cluster.healthy && cluster.healthNote?.startsWith(`host key mismatch: the server presented ${err.actual},`)) return;
-    await cluster.update({ healthy: false, healthNote: note }, { transaction });
-    const staff = await User.findAll({ where: { role: ["admin", "coordinator"], active: true }, attributes: ["email"], transaction });
-    if (staff.length === 0) return void log.error({ cluster: cluster.name }, "host key mismatch and nobody to tell (no admin or coordinator)");
-    await enqueueMail({
-      to: staff.map((u) => u.email),
-      subject: `[Ergodex] Cluster ${cluster.name}: host key mismatch, connection refused`,
-      textBody: [
-        `The broker refused to connect to cluster "${cluster.name}" (${cluster.host}:${cluster.port}).`,
-        ``,
-        `Pinned host key:     ${err.expected}`,
-        `Key the server sent: ${err.actual}`,
-        ``,
-        `The cluster is marked unhealthy and nothing is dispatched to it. If the server's key was`,
-        `changed on purpose, pin the new fingerprint on the cluster's page; otherwise treat this`,
-        `as a possible interception and check the host.`,
-        ``,
-        `${env.appUrl}/clusters`,
-      ].join("\n"),
-      kind: "cluster.host-key",
-      dedupeKey: `cluster.host-key:${cluster.id}:${err.actual}`,
-    }, { transaction });
-    log.error({ cluster: cluster.name, expected: err.expected, actual: err.actual }, "host key mismatch: cluster marked unhealthy, admins alerted");
+    const seen = `host key mismatch: the server presented ${err.actual},`;
+    if (!cluster.healthy && cluster.healthNote?.startsWith(seen)) return;
+    await cluster.update({ healthy: false, healthNote: `${seen} ${err.expected} is pinned; connection refused (${new Date().toISOString()})` }, { transaction });
+    const mail = await alertClusterFault(cluster.id, "host_key_mismatch", `pinned ${err.expected}, the server presented ${err.actual}`, { transaction });
+    if (!mail) log.error({ cluster: cluster.name }, "host key mismatch and nobody to tell (no active admin or coordinator)");
+    log.error({ cluster: cluster.name, expected: err.expected, actual: err.actual }, "host key mismatch: cluster marked unhealthy, staff alerted");
   });
 }

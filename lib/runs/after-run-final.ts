@@ -5,6 +5,7 @@ import type { Transaction } from "sequelize";
 
 import { modelsFor } from "@/lib/db/models-for";
 import { computePointEstimates } from "@/lib/estimates/compute-point-estimates";
+import { enqueueEnsembleDoneMail } from "@/lib/mail/ensemble-done";
 import type { EnsembleState } from "@/models/ensemble";
 import type { RunState } from "@/models/run";
 
@@ -42,6 +43,7 @@ export async function afterRunFinal(run: { ensembleId: string; pointId: string }
   const open = Object.entries(counts).some(([state, n]) => !SETTLED_RUN_STATES.includes(state as RunState) && Number(n) > 0);
   if (!open && (ensemble.state === "active" || ensemble.finishedAt === null)) {
     await ensemble.update({ state: ensembleOutcome(ensemble.state as EnsembleState, counts), finishedAt: ensemble.finishedAt ?? new Date() }, { transaction });
+    await enqueueEnsembleDoneMail(ensemble.id, { transaction }); // only if the spec asks (notify.onDone)
   }
   return { pointEstimated, ensembleState: ensemble.state as EnsembleState };
 }
