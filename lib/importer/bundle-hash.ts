@@ -14,7 +14,12 @@ export const IMPORTER_VERSION = "1.0.0";
  * Import row: the hash of its sorted file listing (name and sha256 of each regular file).
  */
 export async function bundleHashOf(dir: string): Promise<string> {
-  const bytes = readManifestBytes(dir);
+  let bytes: Buffer | null = null;
+  try {
+    bytes = readManifestBytes(dir);
+  } catch {
+    // A manifest that is a link or too large is refused later; the listing still identifies the folder.
+  }
   if (bytes) return manifestHash(bytes);
   const h = crypto.createHash("sha256").update("ergodex.bundle-without-manifest\n");
   const names = fs.readdirSync(dir, { withFileTypes: true }).filter((e) => e.isFile()).map((e) => e.name).sort();

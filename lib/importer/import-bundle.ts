@@ -10,7 +10,7 @@ import { bundleError } from "./bundle-error";
 import { bundleHashOf } from "./bundle-hash";
 import { parseManifest, readManifestBytes, MANIFEST } from "./read-manifest";
 import { recordRejection } from "./record-rejection";
-import { resolveRun, type RunContext } from "./run-context";
+import { loadRunContext, resolveRun, type RunContext } from "./run-context";
 import { validateBundle } from "./validate-bundle";
 import { writeImport } from "./write-import";
 
@@ -47,18 +47,23 @@ export async function importBundle(input: ImportBundleInput, options: { transact
   const { transaction } = options;
   const m = modelsFor(transaction);
   if (!fs.existsSync(input.dir) || !fs.lstatSync(input.dir).isDirectory()) throw new AppError("bad_request", `bundle folder ${input.dir} does not exist`);
+  // A named run must exist before anything else: a rejection is then recorded against it.
+  let context: RunContext | undefined;
+  if (input.runId !== null) {
+    context = (await loadRunContext(input.runId, transaction)) ?? undefined;
+    if (!context) throw new AppError("not_found", `run ${input.runId} does not exist (or has no point or sampler)`);
+  }
   const bundleHash = await bundleHashOf(input.dir);
   const originalNames = input.originalNames ?? defaultNames(input.dir);
 
   const known = await m.Import.findOne({ where: { bundleHash, state: "accepted" }, transaction });
   if (known) return alreadyImported(known.id, known.runId, input.runId);
 
-  let context: RunContext | undefined;
   try {
     const bytes = readManifestBytes(input.dir);
     if (!bytes) throw bundleError({ file: MANIFEST }, "is missing: a result bundle must contain manifest.json");
     const bundle = await validateBundle(input.dir, bytes, async (manifest) => {
-      const resolved = await resolveRun(input.runId, input.source, manifest, transaction);
+      const resolved = await resolveRun(input.runId, input.source, manifest, transaction, context);
       context = resolved.context;
       return resolved.expectation;
     });

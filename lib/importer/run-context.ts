@@ -36,11 +36,11 @@ export async function loadRunContext(runId: string, transaction?: Transaction): 
  * names (a bundle of an Ergodex run brought in by hand). Returns the expectation for validation.
  */
 export async function resolveRun(
-  runId: string | null, source: RunSource, manifest: Manifest, transaction?: Transaction,
+  runId: string | null, source: RunSource, manifest: Manifest, transaction?: Transaction, preloaded?: RunContext,
 ): Promise<{ context: RunContext; expectation: BundleExpectation }> {
   let context: RunContext | null;
   if (runId !== null) {
-    context = await loadRunContext(runId, transaction);
+    context = preloaded?.run.id === runId ? preloaded : await loadRunContext(runId, transaction);
     if (!context) throw new AppError("not_found", `run ${runId} does not exist (or has no point or sampler)`);
   } else {
     context = await loadRunContext(manifest.runId, transaction);

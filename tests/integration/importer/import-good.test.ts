@@ -20,12 +20,14 @@ const ROWS = 5000;
 let runs: Run[];
 let csvBundle: string;
 let f64Bundle: string;
+let uploader: Awaited<ReturnType<typeof makeUser>>;
 
 beforeAll(async () => {
   const group = await makeGroup();
   const owner = await makeUser("researcher", group);
+  uploader = owner;
   const sampler = await registerIsing();
-  ({ runs } = await makeEnsemble({ owner, group, sampler, points: [PARAMS], replicas: 3 }));
+  ({ runs } = await makeEnsemble({ owner, group, sampler, points: [PARAMS], replicas: 4 }));
   csvBundle = sampleBundle(runs[0], PARAMS, { measurements: ROWS });
   f64Bundle = sampleBundle(runs[1], PARAMS, { measurements: 300, encoding: "f64le" });
 });
@@ -155,5 +157,22 @@ describe("importBundle with an f64le bundle", () => {
     const err = await importBundle({ runId: "00000000-0000-4000-8000-000000000000", dir, source: "cluster" }).catch((e) => e);
     expect(err).toBeInstanceOf(AppError);
     expect(err.code).toBe("not_found");
+  });
+});
+
+describe("importBundle for uploads", () => {
+  it("imports a bundle from elsewhere as the given run, without requiring its run id or seed, recording the uploader", async () => {
+    const dir = copyBundle(sampleBundle(runs[2], PARAMS, { measurements: 200 }));
+    editManifest(dir, (m) => { m.runId = "lab-b/chain-0007"; m.seed = "99"; });
+    const result = await importBundle({ runId: runs[2].id, dir, source: "upload", uploadedById: uploader.id, originalNames: ["chain7/manifest.json", "chain7/series.csv"] });
+    expect(result).toMatchObject({ status: "imported", runId: runs[2].id, rows: 200 });
+    expect(await db().Import.findByPk(result.importId)).toMatchObject({ source: "upload", uploadedById: uploader.id, originalNames: ["chain7/manifest.json", "chain7/series.csv"] });
+  });
+
+  it("finds the run from the manifest when no run id is given", async () => {
+    const dir = copyBundle(sampleBundle(runs[3], PARAMS, { measurements: 200 }));
+    const result = await importBundle({ runId: null, dir, source: "upload" });
+    expect(result).toMatchObject({ status: "imported", runId: runs[3].id });
+    expect((await loadSeries(runs[3].id, "e")).length).toBe(200);
   });
 });

@@ -218,3 +218,21 @@ describe("bundles refused with a reason naming file and line or field", () => {
     await expectRejected(copyBundle(other), /already has an imported bundle/, "conflict");
   });
 });
+
+describe("where a rejection is recorded", () => {
+  it("against the named run, even when the manifest itself is unusable", async () => {
+    const dir = copyBundle(csv);
+    fs.rmSync(path.join(dir, "manifest.json"));
+    fs.symlinkSync(path.join(csv, "manifest.json"), path.join(dir, "manifest.json"));
+    const err = await importBundle({ runId: runs[1].id, dir, source: "cluster" }).catch((e) => e);
+    expect(err.message).toMatch(/^manifest\.json: is not a regular file/);
+    expect(await db().Import.findByPk(err.details.importId)).toMatchObject({ state: "rejected", runId: runs[1].id });
+  });
+
+  it("a bundle whose manifest names an unknown run, imported without a run id", async () => {
+    const dir = manifestCase((m) => { m.runId = "9d3f0c1e-0000-4000-8000-000000000001"; });
+    const err = await importBundle({ runId: null, dir, source: "upload" }).catch((e) => e);
+    expect(err.message).toMatch(/manifest\.json \/runId: "9d3f0c1e-0000-4000-8000-000000000001" is not a known run/);
+    expect(await db().Import.findByPk(err.details.importId)).toMatchObject({ state: "rejected", runId: null, source: "upload" });
+  });
+});
