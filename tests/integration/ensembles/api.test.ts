@@ -16,6 +16,7 @@ import { makeEnsemble } from "../../support/db";
 const researcherEmail = DEMO_PEOPLE.find((p) => p.role === "researcher")!.email;
 let token: string;
 let tmp: string;
+let submittedId: string; // the tiny ensemble submitted over HTTP, which the stack's broker runs
 const tag = `api-${crypto.randomBytes(4).toString("hex")}`;
 
 const tinySpec = (over: Record<string, unknown> = {}) => ({
@@ -78,6 +79,7 @@ describe("HTTP API", () => {
     const res = await api("POST", "/api/v1/ensembles", { token }, tinySpec());
     expect(res.status).toBe(201);
     const { ensembleId, runIds } = res.json!.data;
+    submittedId = ensembleId;
     expect(runIds).toHaveLength(2);
     expect(preview.json!.data.seeds.map((s: { seed: string }) => s.seed).sort())
       .toEqual((await db().Run.findAll({ where: { id: runIds } })).map((r) => r.seed).sort());
@@ -107,6 +109,40 @@ describe("HTTP API", () => {
     expect(run.json!.data.ensemble.id).toBe(ensembleId);
     expect((await api("GET", `/api/v1/runs/${crypto.randomUUID()}`, { token })).status).toBe(404);
   });
+});
+
+/** Poll the detail endpoint until every run has ended (the broker and the loopback cluster run it), or give up. */
+async function untilEnded(id: string, deadlineMs = 90_000) {
+  const t0 = Date.now();
+  for (;;) {
+    const d = (await api("GET", `/api/v1/ensembles/${id}`, { token })).json!.data;
+    const open = d.counts.total - d.counts.done - d.counts.failed - d.counts.cancelled;
+    if (open === 0 || Date.now() - t0 > deadlineMs) return d;
+    await new Promise((r) => setTimeout(r, 1000));
+  }
+}
+
+describe("a submitted ensemble, once run by the stack", () => {
+  it("ends done, charged, and its point estimates come back through the CLI as CSV", async () => {
+    const d = await untilEnded(submittedId);
+    expect(d.counts).toMatchObject({ total: 2, done: 2 });
+    expect(d.coreHours.held).toBe(0); // settled: every run charged what it used and released the rest
+    expect(d.coreHours.charged + d.coreHours.released).toBeCloseTo(d.coreHours.reserved, 4);
+    const out = path.join(tmp, "done.csv");
+    const fetched = await cli(["fetch-estimates", submittedId, "-o", out]);
+    expect(fetched.code).toBe(0);
+    const [head, ...rows] = fs.readFileSync(out, "utf8").trimEnd().split("\r\n").map((l) => l.split(","));
+    const col = (name: string) => head.indexOf(name);
+    // at both points the 4 ising2d series observables (DESIGN.md), plus whatever the analysis derives from them
+    const at = (T: string) => rows.filter((r) => r[col("T")] === T).map((r) => r[col("observable")]).sort();
+    expect(at("2.2")).toEqual(expect.arrayContaining(["absM", "e", "m2", "m4"]));
+    expect(at("2.4")).toEqual(at("2.2"));
+    expect(rows).toHaveLength(2 * at("2.2").length);
+    for (const r of rows.filter((r) => ["absM", "e", "m2", "m4"].includes(r[col("observable")]))) {
+      expect(Number.isFinite(Number(r[col("mean")]))).toBe(true);
+      expect(Number(r[col("error")])).toBeGreaterThan(0);
+    }
+  }, 120_000);
 });
 
 describe("the ergodex CLI", () => {
