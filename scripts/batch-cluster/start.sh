@@ -33,12 +33,12 @@ runuser -u "$BC_USER" -- mkdir -p "$WORK_ROOT" "$HOME_DIR/.ssh"
 chmod 700 "$HOME_DIR/.ssh"
 
 # --- state dir layout -----------------------------------------------------------------------
-mkdir -p "$BC_STATE"/{munge,slurmctld,slurmd,run,log,ssh,keys}
+mkdir -p "$BC_STATE"/{munge,slurmctld,run,log,ssh,keys}
 chmod 755 "$BC_STATE"
 chmod 700 "$BC_STATE"/{munge,keys}
 PUB=$(bc_public_dir)
-mkdir -p "$PUB/munge"
-chmod 755 "$PUB" "$PUB/munge"
+mkdir -p "$PUB/munge" "$PUB/slurmd"
+chmod 755 "$PUB" "$PUB/munge" "$PUB/slurmd"
 # munged needs every folder above its socket traversable by the clients (the cluster user too).
 d=$PUB
 while [ "$d" != / ]; do
@@ -88,7 +88,7 @@ hw=$(slurmd -C | head -1)
 field() { sed -n "s/.*\b$1=\([0-9]*\).*/\1/p" <<<"$hw"; }
 MEM=$(( $(field RealMemory) * 9 / 10 ))
 sed -e "s|@CLUSTER@|$BC_CLUSTER|; s|@CTLD_PORT@|$BC_CTLD_PORT|; s|@SLURMD_PORT@|$BC_SLURMD_PORT|" \
-    -e "s|@MUNGE_SOCKET@|$MUNGE_SOCKET|; s|@STATE@|$BC_STATE|g; s|@KILL_WAIT@|$BC_KILL_WAIT|" \
+    -e "s|@MUNGE_SOCKET@|$MUNGE_SOCKET|; s|@STATE@|$BC_STATE|g; s|@KILL_WAIT@|$BC_KILL_WAIT|; s|@PUB@|$PUB|g" \
     -e "s|@NODE@|$BC_NODE|g; s|@CPUS@|$(field CPUs)|; s|@SOCKETS@|$(field SocketsPerBoard)|" \
     -e "s|@CORES@|$(field CoresPerSocket)|; s|@THREADS@|$(field ThreadsPerCore)|; s|@MEM@|$MEM|; s|@PARTITION@|$BC_PARTITION|" \
     "$BC_HERE/templates/slurm.conf.tmpl" > "$SLURM_CONF.new"
