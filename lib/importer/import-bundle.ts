@@ -37,8 +37,8 @@ export type ImportBundleResult = {
 /**
  * Import the result bundle in `dir` as run `runId`. The whole bundle is validated first (manifest,
  * run and sampler agreement, file hashes, series contents); then Import, Artifact, RunArtifact,
- * Series (COPY, chunks of float8[]) and Estimate rows (per run and per point) are written in one
- * transaction — the caller's if given. A bundle already imported (same manifest bytes) is a
+ * Series (COPY, chunks of float8[]) and the run's Estimate rows are written in one transaction —
+ * the caller's if given. Point estimates are the caller's next step (computePointEstimates). A bundle already imported (same manifest bytes) is a
  * no-op returning "already-imported". A refused bundle throws AppError("invalid") naming file and
  * line or field (or "conflict" if the run already has another result) and leaves only a rejected
  * Import row, written in a transaction of its own.
@@ -69,7 +69,7 @@ export async function importBundle(input: ImportBundleInput, options: { transact
     });
     const run = context!.run;
     const write = (t: Transaction) => writeImport({
-      dir: input.dir, runId: run.id, pointId: run.pointId, bundleHash, bundle,
+      dir: input.dir, runId: run.id, bundleHash, bundle,
       source: input.source, uploadedById: input.uploadedById ?? null, originalNames,
     }, t);
     const outcome = transaction ? await write(transaction) : await m.sequelize.transaction(write);

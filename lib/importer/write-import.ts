@@ -1,10 +1,9 @@
 import "server-only";
-// The one transaction of a good import: Import, archived files, RunArtifacts, Series by COPY, estimates.
+// The one transaction of a good import: Import, archived files, RunArtifacts, Series by COPY, run estimates.
 import path from "node:path";
 import type { Transaction } from "sequelize";
 import { modelsFor } from "@/lib/db/models-for";
 import { AppError } from "@/lib/errors";
-import { computePointEstimates } from "@/lib/estimates/compute-point-estimates";
 import { computeRunEstimates, type EstimateProblem } from "@/lib/estimates/compute-run-estimates";
 import { archiveFile } from "@/lib/storage/archive-file";
 import type { RunArtifactRole } from "@/models/run-artifact";
@@ -16,7 +15,7 @@ import type { ValidBundle } from "./validate-bundle";
 
 /** Input of {@link writeImport}. */
 export type WriteImportInput = {
-  dir: string; runId: string; pointId: string; bundleHash: string; bundle: ValidBundle;
+  dir: string; runId: string; bundleHash: string; bundle: ValidBundle;
   source: RunSource; uploadedById: string | null; originalNames: string[];
 };
 
@@ -59,7 +58,8 @@ export async function writeImport(input: WriteImportInput, transaction: Transact
   await m.Run.update({ samplerCommit: manifest.sampler.commit ?? null, host: manifest.host }, { where: { id: input.runId }, transaction });
 
   const byName = new Map(series.columns.map((c, k) => [c, series.values[k]] as const));
+  // Point estimates are not formed here: the caller does that once the point's replicas are final
+  // (lib/runs/after-run-final.ts), so a point does not collect a version per arriving replica.
   const runEstimates = await computeRunEstimates(input.runId, { transaction, series: byName });
-  const pointEstimates = await computePointEstimates(input.pointId, { transaction });
-  return { status: "imported", importId: record.id, seriesRows, problems: [...runEstimates.problems, ...pointEstimates.problems] };
+  return { status: "imported", importId: record.id, seriesRows, problems: runEstimates.problems };
 }

@@ -22,6 +22,13 @@ async function collect(run: Run) {
 async function markDone(run: Run) {
   await transitionRun(run.id, "done", { cause: "test.collect" });
 }
+// Import a replica as the broker does: collecting, import, done, then the point's estimates.
+async function importReplica(run: Run, dir: string) {
+  await collect(run);
+  await importBundle({ runId: run.id, dir, source: "cluster" });
+  await markDone(run);
+  return computePointEstimates(run.pointId);
+}
 
 async function current(observable: string) {
   const rows = await db().Estimate.findAll({ where: { pointId: point.id, observable, scope: "point" }, order: [["version", "ASC"]] });
@@ -45,8 +52,7 @@ beforeAll(async () => {
 
 describe("computePointEstimates", () => {
   it("with one replica passes its estimate through, without chi²", async () => {
-    await collect(runs[0]);
-    await importBundle({ runId: runs[0].id, dir: copyBundle(bundles[0]), source: "cluster" });
+    await importReplica(runs[0], copyBundle(bundles[0]));
     const { now } = await current("e");
     const [r0] = await runEstimates("e", [runs[0].id]);
     expect(now.error).toBeCloseTo(r0.error, 14); // 1/sqrt(1/σ²) is σ up to rounding
@@ -54,9 +60,7 @@ describe("computePointEstimates", () => {
   });
 
   it("with two replicas gives the inverse-variance mean, its error and chi²/dof", async () => {
-    await markDone(runs[0]);
-    await collect(runs[1]);
-    await importBundle({ runId: runs[1].id, dir: copyBundle(bundles[1]), source: "cluster" });
+    await importReplica(runs[1], copyBundle(bundles[1]));
     for (const observable of ["e", "absM", "m2", "U4", "C"]) {
       const reps = await runEstimates(observable, [runs[0].id, runs[1].id]);
       // Weighted mean with weights 1/σ² (inverse-variance weighting, e.g. Bevington & Robinson 2003, §4.1).
@@ -77,7 +81,6 @@ describe("computePointEstimates", () => {
   });
 
   it("stores nothing new when the combination has not changed", async () => {
-    await markDone(runs[1]);
     const before = await db().Estimate.count({ where: { scope: "point" } });
     const result = await computePointEstimates(point.id);
     expect(result.estimates).toHaveLength(0);
@@ -95,8 +98,7 @@ describe("computePointEstimates", () => {
         lines[i] = cells.join(",");
       }
     });
-    await collect(runs[2]);
-    await importBundle({ runId: runs[2].id, dir, source: "cluster" });
+    await importReplica(runs[2], dir);
     const reps = await runEstimates("e", runs.map((r) => r.id));
     const w = reps.map((r) => 1 / r.error ** 2);
     const sw = w.reduce((a, b) => a + b, 0);
@@ -114,20 +116,25 @@ describe("computePointEstimates", () => {
 });
 
 describe("which replicas count", () => {
-  it("leaves out runs that are neither done nor collecting with an accepted import", async () => {
+  it("done runs, and collecting runs with an accepted import; not queued or cancelled ones", async () => {
     const group = await makeGroup();
     const owner = await makeUser("researcher", group);
     const sampler = await db().Sampler.findOne({ where: { name: "ising2d" } });
-    const { runs: two, points } = await makeEnsemble({ owner, group, sampler: sampler!, points: [PARAMS], replicas: 2 });
-    const dirs = two.map((run) => sampleBundle(run, PARAMS, { measurements: 300 }));
-    await collect(two[0]);
-    await importBundle({ runId: two[0].id, dir: dirs[0], source: "cluster" });
-    // Imported while still queued (no broker in between): its estimates exist but it is not finished.
-    await importBundle({ runId: two[1].id, dir: dirs[1], source: "cluster" });
-    const now = await db().Estimate.findOne({ where: { pointId: points[0].id, scope: "point", observable: "e", isCurrent: true } });
-    const [r0] = await runEstimates("e", [two[0].id]);
-    expect(now).toMatchObject({ mean: r0.mean, chi2dof: null, n: r0.n });
-    await transitionRun(two[1].id, "cancelled", { cause: "test.cancel" });
-    expect((await computePointEstimates(points[0].id)).estimates).toHaveLength(0);
+    const { runs: three, points } = await makeEnsemble({ owner, group, sampler: sampler!, points: [PARAMS], replicas: 3 });
+    const dirs = three.map((run) => sampleBundle(run, PARAMS, { measurements: 300 }));
+    await collect(three[0]);
+    await importBundle({ runId: three[0].id, dir: dirs[0], source: "cluster" }); // collecting, imported: counts
+    await importBundle({ runId: three[1].id, dir: dirs[1], source: "cluster" }); // imported while queued: does not
+    await collect(three[2]);
+    await importBundle({ runId: three[2].id, dir: dirs[2], source: "cluster" });
+    await transitionRun(three[2].id, "cancelled", { cause: "test.cancel" }); // cancelled: does not
+    const result = await computePointEstimates(points[0].id);
+    const e = result.estimates.find((x) => x.observable === "e")!;
+    const [r0] = await runEstimates("e", [three[0].id]);
+    expect(e).toMatchObject({ mean: r0.mean, chi2dof: null, n: r0.n });
+  });
+
+  it("refuses an unknown point", async () => {
+    await expect(computePointEstimates("00000000-0000-4000-8000-000000000000")).rejects.toMatchObject({ code: "not_found" });
   });
 });
