@@ -12,6 +12,8 @@ import type { MailStore } from "@/lib/mail/mail-store-server";
 import { INDEX_FILE } from "@/lib/mail/mail-store-server";
 import { useTestDatabase } from "@/tests/support/db";
 import { stopBoss } from "@/lib/queue/boss";
+import { cancelEnsemble } from "@/lib/ensembles/cancel-ensemble";
+import { loadIdentity } from "@/lib/auth/identity";
 import { db, type Cluster, type User } from "@/models";
 import {
   BrokerProcess, freePort, isingSpec, ledgerOf, makeCatalogSamplers, makeClusterRow, makePeople, startNode, startSmtp,
@@ -180,6 +182,26 @@ describe("broker flow", () => {
     expect(archived.map((a) => a.artifactSha256)).toEqual([expected]);
     fs.rmSync(dir, { recursive: true, force: true });
     const ledger = await ledgerOf(sub.ensembleId);
+    expect(ledger.reserve).toBeCloseTo((ledger.charge ?? 0) + (ledger.release ?? 0), 4);
+  });
+
+  it("cancelling an ensemble stops its running and dispatched runs on the cluster and settles them", async () => {
+    const sub = await submit(people.researcher, isingSpec("good", people.allocationName, {
+      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 3, thermalization: 1000, measurements: 3000, interval: 150,
+    }));
+    // Two run (the node has two slots), the third waits on the node as dispatched.
+    await waitFor("two running", () => stateCounts(sub.ensembleId), (c) => c.running === 2 && c.dispatched === 1, 60_000, broker);
+    const who = (await loadIdentity(people.researcher.id, "session"))!;
+    const result = await cancelEnsemble({ actorId: who.userId, ip: null, requestId: "broker-test" }, who, sub.ensembleId);
+    expect(result).toMatchObject({ cancelled: 0, onCluster: 3, cancelJobQueued: true });
+    await waitFor("all cancelled", () => stateCounts(sub.ensembleId), (c) => c.cancelled === 3, 30_000, broker);
+    expect((await db().Ensemble.findByPk(sub.ensembleId))!.state).toBe("cancelled");
+    const onNode = good.node.scheduler.report(sub.runIds, false).runs;
+    expect(onNode.map((r) => r.state)).toEqual(["cancelled", "cancelled", "cancelled"]);
+    const runs = await db().Run.findAll({ where: { ensembleId: sub.ensembleId } });
+    expect(runs.filter((r) => (r.coreHoursUsed ?? 0) > 0)).toHaveLength(2); // the two that ran
+    const ledger = await ledgerOf(sub.ensembleId);
+    expect(ledger.charge).toBeGreaterThan(0);
     expect(ledger.reserve).toBeCloseTo((ledger.charge ?? 0) + (ledger.release ?? 0), 4);
   });
 
