@@ -70,6 +70,8 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
   private readonly samplerOf = new Map<string, string>();
   /** Runs this instance submitted, until the listing shows them. */
   private readonly submitted = new Map<string, { token: string; jobId: string; at: string; groupId: string; index: number }>();
+  /** Tasks this instance cancelled (run id → job id), reported cancelled while still winding down. */
+  private readonly cancelled = new Map<string, string>();
   private root: Promise<string> | null = null;
 
   constructor(private readonly opts: BatchAdapterOptions) {
@@ -237,9 +239,14 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
     const base = { ...blankStatus(runId), progress: f?.progress ?? null, stderrTail: f?.stderrTail ?? "", attempt: attempts || null };
     // Submitted by us after the listing was taken (a resubmission may still show its old task there).
     const mine = this.submitted.get(runId);
-    if (mine) return { ...base, state: "queued", failure: null, jobId: mine.jobId, dispatchToken: mine.token, submittedAt: mine.at };
+    const cancelled = this.cancelled.get(runId);
+    if (mine) {
+      return { ...base, state: cancelled === mine.jobId ? "cancelled" : "queued", failure: null, jobId: mine.jobId, dispatchToken: mine.token, submittedAt: mine.at };
+    }
     if (v) {
-      const m = mapSchedulerState(v.row, base.stderrTail);
+      let m = mapSchedulerState(v.row, base.stderrTail);
+      // A cancelled running task is listed as COMPLETING until its processes are gone; scancel took it.
+      if (cancelled === v.row.jobId && ACTIVE.has(m.state)) m = { ...m, state: "cancelled", failure: null };
       return { ...base, ...m, jobId: v.row.jobId, dispatchToken: v.task.token, submittedAt: v.row.submittedAt, startedAt: v.row.startedAt, finishedAt: m.state === "queued" || m.state === "running" ? null : v.row.finishedAt };
     }
     // Aged out of the listing: the latest marker in the run folder tells how the task went.
@@ -260,17 +267,19 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
   async cancel(runIds: string[]): Promise<RunStatus[]> {
     runIds.forEach((id) => check(ID.test(id), `cancel: invalid run id "${id}"`));
     const view = await this.listing.view(await this.listing.get());
-    const jobIds = runIds.flatMap((id) => {
+    const targets = runIds.flatMap((id): [string, string][] => {
       const mine = this.submitted.get(id);
-      if (mine) return [mine.jobId];
+      if (mine) return [[id, mine.jobId]];
       const v = view.get(id);
-      return v && ACTIVE.has(mapSchedulerState(v.row).state) ? [v.row.jobId] : [];
+      return v && ACTIVE.has(mapSchedulerState(v.row).state) ? [[id, v.row.jobId]] : [];
     });
+    const jobIds = targets.map(([, j]) => j);
     for (const ids of chunks(jobIds, IDS_PER_CALL)) {
       const r = await this.connection.exec(`scancel ${ids.join(" ")}`, { idempotent: true });
       this.schedulerCalls.scancel++;
       if (r.code !== 0) throw new ClusterProtocolError(`scancel failed with exit ${r.code}: ${r.stderr.trim().slice(0, 300)}`, r.code);
     }
+    for (const [id, j] of targets) this.cancelled.set(id, j);
     // The scheduler's own answer, taken when the query interval allows.
     return this.statusFrom(await this.listing.get({ fresh: jobIds.length > 0 }), runIds);
   }

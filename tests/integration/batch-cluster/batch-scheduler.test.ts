@@ -150,6 +150,9 @@ describe.skipIf(!conn)("batch scheduler over SSH (real scheduler on loopback)", 
       await new Promise((r) => setTimeout(r, 500));
     }
     expect(left).toBe("");
+    // Once wound down, the scheduler's own listing says CANCELLED too.
+    await new Promise((r) => setTimeout(r, 1100));
+    expect((await a.status(ids)).map((s) => s.state)).toEqual(ids.map(() => "cancelled"));
     const procs = (await remoteSh(a, "ps -u $(id -u) -o args=")).split("\n").filter((l) => ids.some((id) => l.includes(id)));
     expect(procs).toEqual([]);
   }, 120_000);
