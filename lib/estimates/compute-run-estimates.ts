@@ -6,7 +6,7 @@ import { modelsFor } from "@/lib/db/models-for";
 import { AppError } from "@/lib/errors";
 import { loadSeries, seriesNames } from "@/lib/importer/load-series";
 import type { Estimate } from "@/models/estimate";
-import { derivedIsingEstimates } from "./derived-ising";
+import { derivedIsingEstimates, type PrimaryFit } from "./derived-ising";
 import { writeEstimateVersions, type NewEstimate } from "./write-estimates";
 
 /** An observable that got no estimate, and why (e.g. a series too short for the automatic cut). */
@@ -45,10 +45,12 @@ export async function computeRunEstimates(runId: string, options: RunEstimatesOp
   const rows: NewEstimate[] = [];
   const problems: EstimateProblem[] = [];
   const base = { pointId: run.pointId, ensembleId: run.ensembleId, params };
+  const fits = new Map<string, PrimaryFit>();
   for (const [observable, x] of series) {
     if (observable === "sweep") continue;
     try {
       const e = estimateSeries(x);
+      fits.set(observable, { cut: e.cut.index, tauInt: e.tauInt });
       rows.push({
         ...base, observable, mean: e.mean, error: e.error, tauInt: e.tauInt, tauIntError: e.tauIntError,
         thermCut: e.cut.index, n: e.n, window: e.window, method: e.method, analysisVersion: e.analysisVersion,
@@ -59,7 +61,7 @@ export async function computeRunEstimates(runId: string, options: RunEstimatesOp
     }
   }
   if (run.ensemble?.sampler?.name === "ising2d") {
-    for (const d of derivedIsingEstimates(series, params)) {
+    for (const d of derivedIsingEstimates(series, params, fits)) {
       if ("problem" in d) { problems.push({ observable: d.observable, reason: d.problem }); continue; }
       const r = d.result;
       // tau_int is the largest among the inputs (it set the bin size); the jackknife has no window.

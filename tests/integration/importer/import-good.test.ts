@@ -2,7 +2,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
-import { ANALYSIS_VERSION, binderCumulant, estimateSeries, specificHeat, susceptibility } from "@/lib/analysis";
+import { ANALYSIS_VERSION, binderCumulant, estimateSeries, gammaMethod, specificHeat, susceptibility } from "@/lib/analysis";
 import { env } from "@/lib/env";
 import { AppError } from "@/lib/errors";
 import { importBundle } from "@/lib/importer/import-bundle";
@@ -75,10 +75,27 @@ describe("importBundle with a good csv bundle", () => {
       expect(by.get(name)).toMatchObject({ mean: want.mean, error: want.error, tauInt: want.tauInt, thermCut: want.cut.index, n: want.n, window: want.window, method: want.method });
       expect(want.cut.index + want.n).toBe(ROWS);
     }
+    // Derived quantities: the library's blocked jackknife with the cut and bins its default rule
+    // gives — largest input cut, bins of ceil(20·max τ_int) (here τ of the stored estimates, and of
+    // e² for C), at least 20 bins — equal to rounding.
     const thermo = { sites: 64, temperature: 2.3 };
-    expect(by.get("U4")!.mean).toBe(binderCumulant(csv.get("m2")!, csv.get("m4")!).mean);
-    expect(by.get("chi")!.mean).toBe(susceptibility(csv.get("absM")!, csv.get("m2")!, thermo).mean);
-    expect(by.get("C")).toMatchObject({ mean: specificHeat(csv.get("e")!, thermo).mean, method: "jackknife-blocked" });
+    const rule = (names: string[], extraTau: (cut: number) => number[] = () => []) => {
+      const cut = Math.max(...names.map((n) => by.get(n)!.thermCut));
+      const tau = Math.max(...names.map((n) => by.get(n)!.tauInt!), ...extraTau(cut));
+      return { cut, binSize: Math.min(Math.ceil(20 * tau), Math.floor((ROWS - cut) / 20)) };
+    };
+    const close = (got: number, want: number) => expect(Math.abs(got - want)).toBeLessThanOrEqual(1e-12 * Math.abs(want));
+    const e = csv.get("e")!;
+    const wanted = {
+      U4: binderCumulant(csv.get("m2")!, csv.get("m4")!, rule(["m2", "m4"])),
+      chi: susceptibility(csv.get("absM")!, csv.get("m2")!, thermo, rule(["absM", "m2"])),
+      C: specificHeat(e, thermo, rule(["e"], (cut) => [gammaMethod(e.map((v) => v * v).subarray(cut)).tauInt])),
+    };
+    for (const [name, want] of Object.entries(wanted)) {
+      close(by.get(name)!.mean, want.mean);
+      close(by.get(name)!.error, want.error);
+      expect(by.get(name)).toMatchObject({ method: "jackknife-blocked", thermCut: want.cut.index, n: want.n });
+    }
   });
 
   it("gives an energy that agrees with Kaufman's exact 8×8 value within 5 of its own error bars", async () => {
