@@ -4,7 +4,8 @@ import { downloadDir, ensureRemoteDir, mapLimit } from "./sftp-files.js";
 import { ClusterError, ClusterProtocolError } from "./errors.js";
 import { mapSchedulerState } from "./batch-status.js";
 import { inspectCommand, inspectInput, parseInspect, type RunFolderInfo } from "./batch-inspect.js";
-import { IntervalGate, SchedulerListing, type RunTaskView, type SchedulerCallStats } from "./batch-listing.js";
+import { IntervalGate, SchedulerListing, type SchedulerCallStats } from "./batch-listing.js";
+import { composeRunStatus } from "./batch-run-status.js";
 import {
   ARRAYS_DIR, SAFE_PATH, groupDirOf, groupIdOf, renderBatchScript, renderTasks, wallMinutes, type ArrayTask,
 } from "./batch-script.js";
@@ -46,14 +47,6 @@ function chunks<T>(items: T[], size: number): T[][] {
   const out: T[][] = [];
   for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size));
   return out;
-}
-
-function blankStatus(runId: string): RunStatus {
-  return {
-    runId, state: "unknown", jobId: null, dispatchToken: null, attempt: null, exitCode: null, signal: null, checkpointed: false,
-    failure: { reason: "unknown_to_cluster", detail: "the scheduler lists no job for this run and its folder shows no task" },
-    progress: null, submittedAt: null, startedAt: null, finishedAt: null, stderrTail: "",
-  };
 }
 
 /**
@@ -231,32 +224,9 @@ export class BatchSchedulerAdapter implements ClusterAdapter {
     const folders = look.length
       ? await this.inspect(look.map((id) => { const v = view.get(id); return { runId: id, errFile: v ? `${groupDirOf(root, v.groupId)}/${v.task.index}.err` : null }; }))
       : new Map<string, RunFolderInfo>();
-    return ids.map((id) => this.statusOf(id, view.get(id), folders.get(id)));
-  }
-
-  private statusOf(runId: string, v: RunTaskView | undefined, f: RunFolderInfo | undefined): RunStatus {
-    const attempts = f ? [...f.tokens.values()].filter((t) => t.startedAt).length : 0;
-    const base = { ...blankStatus(runId), progress: f?.progress ?? null, stderrTail: f?.stderrTail ?? "", attempt: attempts || null };
-    // Submitted by us after the listing was taken (a resubmission may still show its old task there).
-    const mine = this.submitted.get(runId);
-    const cancelled = this.cancelled.get(runId);
-    if (mine) {
-      return { ...base, state: cancelled === mine.jobId ? "cancelled" : "queued", failure: null, jobId: mine.jobId, dispatchToken: mine.token, submittedAt: mine.at };
-    }
-    if (v) {
-      let m = mapSchedulerState(v.row, base.stderrTail);
-      // A cancelled running task is listed as COMPLETING until its processes are gone; scancel took it.
-      if (cancelled === v.row.jobId && ACTIVE.has(m.state)) m = { ...m, state: "cancelled", failure: null };
-      return { ...base, ...m, jobId: v.row.jobId, dispatchToken: v.task.token, submittedAt: v.row.submittedAt, startedAt: v.row.startedAt, finishedAt: m.state === "queued" || m.state === "running" ? null : v.row.finishedAt };
-    }
-    // Aged out of the listing: the latest marker in the run folder tells how the task went.
-    const latest = f ? [...f.tokens.entries()].filter(([, t]) => t.startedAt).sort((a, b) => a[1].startedAt.localeCompare(b[1].startedAt)).pop() : undefined;
-    if (!latest) return base;
-    const [token, t] = latest;
-    const common = { ...base, jobId: t.jobId, dispatchToken: token, startedAt: t.startedAt, finishedAt: t.finishedAt };
-    if (t.exitCode === null) return { ...common, state: "lost", failure: { reason: "node_lost", detail: "the scheduler no longer lists the task and it left no exit marker" } };
-    const m = mapSchedulerState({ state: t.exitCode === 0 ? "COMPLETED" : "FAILED", reason: "from the run folder", waitStatus: t.exitCode << 8 }, base.stderrTail);
-    return { ...common, ...m };
+    return ids.map((id) => composeRunStatus(id, {
+      view: view.get(id), mine: this.submitted.get(id), cancelledJobId: this.cancelled.get(id), folder: folders.get(id),
+    }));
   }
 
   async fetch(runId: string, localDir: string): Promise<FetchedFile[]> {
