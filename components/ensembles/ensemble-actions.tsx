@@ -13,12 +13,16 @@ const QUESTION: Record<Kind, (n: number) => string> = {
   resubmit: (n) => `Queue ${n} failed run${n === 1 ? "" : "s"} again, with the same seeds? Core-hours are reserved for them again.`,
 };
 
-/** Summary of what an action's lib call answered, in words. */
+const runs = (n: number) => `${n} run${n === 1 ? "" : "s"}`;
+
+/** What an action's lib call answered, in words (lib/ensembles cancel-ensemble / resubmit-failed results). */
 function said(kind: Kind, data: unknown): string {
-  const d = (data ?? {}) as Record<string, unknown>;
-  const n = typeof d.cancelled === "number" ? d.cancelled : typeof d.resubmitted === "number" ? d.resubmitted : Array.isArray(d.runIds) ? d.runIds.length : null;
-  if (kind === "cancel") return n === null ? "Cancelled." : `Cancelled ${n} run${n === 1 ? "" : "s"}.`;
-  return n === null ? "Queued again." : `Queued ${n} run${n === 1 ? "" : "s"} again.`;
+  const d = (data ?? {}) as { cancelled?: number; onCluster?: number; runIds?: string[] };
+  if (kind === "resubmit") return `Queued ${runs(d.runIds?.length ?? 0)} again.`;
+  const now = d.cancelled ?? 0;
+  const later = d.onCluster ?? 0;
+  if (later === 0) return `Cancelled ${runs(now)}.`;
+  return `Cancelled ${runs(now + later)}: ${now} at once, ${later} being stopped on the cluster.`;
 }
 
 /** Cancel and resubmit-failed, each behind a confirmation, with the outcome shown in place. */

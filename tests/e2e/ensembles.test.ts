@@ -1,7 +1,8 @@
 // A researcher submits a tiny ising2d ensemble from the form, sees the preview, watches the run grid
 // reach done without a page reload, and opens a run; a second ensemble whose wall time (1 minute) is far
 // too short for its thermalization fails at run time (wall_time_exceeded) and its failure e-mail shows
-// in the admin's Mailbox; a viewer of another group gets "not found" for both.
+// in the admin's Mailbox; it is resubmitted and cancelled from its page; a viewer of another group gets
+// "not found" for the ensemble and its run.
 import crypto from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, BrowserContext, Page } from "playwright-core";
@@ -184,6 +185,21 @@ describe("ensembles in the browser", () => {
     await shot(adminPage, "mailbox-failure");
     await context.close();
   }, 240_000);
+
+  it("the failed run is resubmitted, then the ensemble cancelled, each after a confirmation", async () => {
+    await page.goto(`/ensembles/${failingId}`);
+    await page.getByRole("button", { name: "Resubmit failed (1)…" }).click();
+    await page.getByRole("alertdialog").getByRole("button", { name: "Yes, resubmit" }).click();
+    await page.getByRole("status").getByText("Queued 1 run again.").waitFor();
+    await until("the run queued again", async () => (await stateCount(page, "failed")) === 0, 15_000, 500);
+    await page.getByRole("button", { name: "Cancel ensemble…" }).click();
+    await page.getByRole("alertdialog").getByRole("button", { name: "Yes, cancel" }).click();
+    await page.getByRole("status").getByText(/^Cancelled 1 run[.:]/).waitFor();
+    // a queued run ends at once; one already on the cluster is stopped by the broker's cancel job
+    await until("the run cancelled", async () => (await stateCount(page, "cancelled")) === 1, 45_000, 1_000);
+    expect(await page.getByTestId("ensemble-state").textContent()).toContain("cancelled");
+    await shot(page, "ensemble-cancelled");
+  }, 90_000);
 
   it("a viewer of another group gets not-found for the ensemble and its run", async () => {
     const m = db();
