@@ -46,7 +46,8 @@ export type ImportBundleResult = {
 export async function importBundle(input: ImportBundleInput, options: { transaction?: Transaction } = {}): Promise<ImportBundleResult> {
   const { transaction } = options;
   const m = modelsFor(transaction);
-  if (!fs.existsSync(input.dir) || !fs.lstatSync(input.dir).isDirectory()) throw new AppError("bad_request", `bundle folder ${input.dir} does not exist`);
+  if (!fs.existsSync(input.dir)) throw new AppError("bad_request", `bundle folder ${input.dir} does not exist`);
+  if (!fs.lstatSync(input.dir).isDirectory()) throw new AppError("bad_request", `bundle ${input.dir} is not a folder (links are not followed)`);
   // A named run must exist before anything else: a rejection is then recorded against it.
   let context: RunContext | undefined;
   if (input.runId !== null) {
