@@ -27,7 +27,7 @@ beforeAll(async () => {
   const owner = await makeUser("researcher", group);
   uploader = owner;
   const sampler = await registerIsing();
-  ({ runs } = await makeEnsemble({ owner, group, sampler, points: [PARAMS], replicas: 4 }));
+  ({ runs } = await makeEnsemble({ owner, group, sampler, points: [PARAMS], replicas: 5 }));
   csvBundle = sampleBundle(runs[0], PARAMS, { measurements: ROWS });
   f64Bundle = sampleBundle(runs[1], PARAMS, { measurements: 300, encoding: "f64le" });
 });
@@ -193,5 +193,17 @@ describe("importBundle for uploads", () => {
     const result = await importBundle({ runId: null, dir, source: "upload" });
     expect(result).toMatchObject({ status: "imported", runId: runs[3].id });
     expect((await loadSeries(runs[3].id, "e")).length).toBe(200);
+  });
+});
+
+describe("importBundle run twice at once", () => {
+  it("imports once: the other call finds it already imported and nothing is duplicated", async () => {
+    const src = sampleBundle(runs[4], PARAMS, { measurements: 300 });
+    const results = await Promise.all([0, 1].map(() => importBundle({ runId: runs[4].id, dir: copyBundle(src), source: "cluster" })));
+    expect(results.map((r) => r.status).sort()).toEqual(["already-imported", "imported"]);
+    expect(results[0].importId).toBe(results[1].importId);
+    expect(await db().Import.count({ where: { runId: runs[4].id } })).toBe(1);
+    expect(await db().Series.count({ where: { runId: runs[4].id, observable: "e" } })).toBe(1);
+    expect(await db().Estimate.count({ where: { runId: runs[4].id, observable: "e" } })).toBe(1);
   });
 });
