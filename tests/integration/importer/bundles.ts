@@ -9,9 +9,18 @@ import { SAMPLER_CATALOG } from "@/lib/samplers/schemas";
 
 const repoRoot = path.resolve(import.meta.dirname, "../../..");
 
+const made: string[] = [];
+
 /** A temporary folder removed by {@link cleanupTemp}. */
 export function tempDir(prefix = "ergodex-import-"): string {
-  return fs.mkdtempSync(path.join(os.tmpdir(), prefix));
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), prefix));
+  made.push(dir);
+  return dir;
+}
+
+/** Remove every folder made by {@link tempDir} (call in afterAll). */
+export function cleanupTemp(): void {
+  for (const dir of made.splice(0)) fs.rmSync(dir, { recursive: true, force: true });
 }
 
 /** The built-in ising2d sampler as registered in the app (name, version and observables from the catalogue). */

@@ -1,7 +1,7 @@
 // A real ising2d bundle imported end to end: series by COPY, estimates, archive; re-import is a no-op.
 import fs from "node:fs";
 import path from "node:path";
-import { beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ANALYSIS_VERSION, binderCumulant, estimateSeries, gammaMethod, specificHeat, susceptibility } from "@/lib/analysis";
 import { env } from "@/lib/env";
 import { AppError } from "@/lib/errors";
@@ -11,7 +11,7 @@ import { computeRunEstimates } from "@/lib/estimates/compute-run-estimates";
 import { db, type Run } from "@/models";
 import { makeEnsemble, makeGroup, makeUser, useTestDatabase } from "@/tests/support/db";
 import { kaufmanEnergy } from "@/tests/unit/samplers/ising-exact";
-import { copyBundle, editManifest, readCsv, sampleBundle, sha256Of, registerIsing, tableCounts } from "./bundles";
+import { cleanupTemp, copyBundle, editManifest, readCsv, sampleBundle, sha256Of, registerIsing, tableCounts } from "./bundles";
 
 useTestDatabase();
 const PARAMS = { L: 8, T: 2.3, algorithm: "metropolis" };
@@ -21,6 +21,8 @@ let runs: Run[];
 let csvBundle: string;
 let f64Bundle: string;
 let uploader: Awaited<ReturnType<typeof makeUser>>;
+
+afterAll(cleanupTemp);
 
 beforeAll(async () => {
   const group = await makeGroup();

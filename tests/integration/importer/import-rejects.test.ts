@@ -1,17 +1,19 @@
 // Tampered, truncated and malformed bundles: each refused with its own reason, nothing left but a rejected Import.
 import fs from "node:fs";
 import path from "node:path";
-import { beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { importBundle } from "@/lib/importer/import-bundle";
 import { db, type Run } from "@/models";
 import { makeEnsemble, makeGroup, makeUser, useTestDatabase } from "@/tests/support/db";
-import { copyBundle, editCsv, editManifest, fixHashes, sampleBundle, registerIsing, tableCounts } from "./bundles";
+import { cleanupTemp, copyBundle, editCsv, editManifest, fixHashes, sampleBundle, registerIsing, tableCounts } from "./bundles";
 
 useTestDatabase();
 const PARAMS = { L: 8, T: 2.3, algorithm: "metropolis" };
 let runs: Run[];
 let csv: string;
 let f64: string;
+
+afterAll(cleanupTemp);
 
 beforeAll(async () => {
   const group = await makeGroup();

@@ -1,11 +1,11 @@
 // Per-point estimates: replicas combined by inverse variance, a disagreeing replica flagged.
-import { beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { computePointEstimates } from "@/lib/estimates/compute-point-estimates";
 import { importBundle } from "@/lib/importer/import-bundle";
 import { transitionRun } from "@/lib/runs/transition-run";
 import { db, type ParameterPoint, type Run } from "@/models";
 import { makeEnsemble, makeGroup, makeUser, useTestDatabase } from "@/tests/support/db";
-import { copyBundle, editCsv, sampleBundle, registerIsing } from "./bundles";
+import { cleanupTemp, copyBundle, editCsv, sampleBundle, registerIsing } from "./bundles";
 
 useTestDatabase();
 const PARAMS = { L: 8, T: 2.3, algorithm: "metropolis" };
@@ -39,6 +39,8 @@ async function runEstimates(observable: string, ids: string[]) {
   const rows = await db().Estimate.findAll({ where: { scope: "run", observable, isCurrent: true } });
   return ids.map((id) => rows.find((r) => r.runId === id)!);
 }
+
+afterAll(cleanupTemp);
 
 beforeAll(async () => {
   const group = await makeGroup();
