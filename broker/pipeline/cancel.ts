@@ -8,7 +8,7 @@ import { AppError } from "@/lib/errors";
 import { transitionRun } from "@/lib/runs/transition-run";
 import { attemptCoreHours } from "@/lib/runs/attempt-core-hours";
 import { settleRun } from "@/lib/allocations/settle-run";
-import { afterRunFinal } from "@/lib/runs/after-run-final";
+import { afterRunFinal, lockEnsemble } from "@/lib/runs/after-run-final";
 import type { ClusterAdapter } from "@/broker/adapters/types";
 
 /** Counts of what a cancel pass did. */
@@ -31,6 +31,7 @@ export async function cancelEnsembleRuns(ensembleId: string, adapter: ClusterAda
     const coreHours = attemptCoreHours(run.cores, s?.startedAt ?? run.startedAt, s?.finishedAt ?? new Date());
     try {
       await db().sequelize.transaction(async (transaction) => {
+        await lockEnsemble(ensembleId, transaction);
         await transitionRun(run.id, "cancelled", {
           cause: "broker.cancel", transaction, detail: { coreHours, clusterState: s?.state ?? null },
           patch: { coreHoursUsed: coreHours, ...(s?.startedAt ? { startedAt: new Date(s.startedAt) } : {}) },
@@ -44,6 +45,7 @@ export async function cancelEnsembleRuns(ensembleId: string, adapter: ClusterAda
   const cancelled = await Run.findAll({ where: { ensembleId, state: "cancelled" } });
   for (const run of cancelled) {
     await db().sequelize.transaction(async (transaction) => {
+      await lockEnsemble(ensembleId, transaction);
       const s = await settleRun(run.id, { transaction });
       if (!s.alreadySettled) out.settled++;
     });

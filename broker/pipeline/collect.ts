@@ -14,7 +14,7 @@ import { importBundle } from "@/lib/importer/import-bundle";
 import { transitionRun } from "@/lib/runs/transition-run";
 import { failRun } from "@/lib/runs/fail-run";
 import { settleRun } from "@/lib/allocations/settle-run";
-import { afterRunFinal } from "@/lib/runs/after-run-final";
+import { afterRunFinal, lockEnsemble } from "@/lib/runs/after-run-final";
 import { withLock } from "./locks";
 
 /** What collecting one run came to. */
@@ -52,6 +52,7 @@ async function collectLocked(runId: string, log: Logger): Promise<CollectOutcome
       return "rejected";
     }
     await db().sequelize.transaction(async (transaction) => {
+      await lockEnsemble(run.ensembleId, transaction);
       const { run: done } = await transitionRun(runId, "done", {
         cause: "collect.imported", transaction,
         patch: { samplerCommit: manifest.sampler?.commit ?? null, host: manifest.host ?? null },

@@ -9,7 +9,7 @@ import { transitionRun } from "@/lib/runs/transition-run";
 import { failRun, type AttemptFailure } from "@/lib/runs/fail-run";
 import { attemptCoreHours } from "@/lib/runs/attempt-core-hours";
 import { settleRun } from "@/lib/allocations/settle-run";
-import { afterRunFinal } from "@/lib/runs/after-run-final";
+import { afterRunFinal, lockEnsemble } from "@/lib/runs/after-run-final";
 import type { ClusterAdapter, RunStatus } from "@/broker/adapters/types";
 import type { FailureReason } from "@/models/run";
 import { loadRuns, runIdsOnCluster } from "./cluster-runs";
@@ -96,6 +96,7 @@ async function applyStatus(run: Run, s: RunStatus, out: PollOutcome): Promise<vo
     case "cancelled":
       // Cancelled on the cluster by someone else than the broker: the run ends cancelled too.
       await db().sequelize.transaction(async (transaction) => {
+        await lockEnsemble(run.ensembleId, transaction);
         const { run: r } = await transitionRun(run.id, "cancelled", {
           cause: "poll.cancelled-on-cluster", transaction, detail: { coreHours },
           patch: { ...times(s), coreHoursUsed: coreHours },

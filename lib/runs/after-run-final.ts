@@ -12,6 +12,14 @@ import type { RunState } from "@/models/run";
 /** Run states after which nothing happens unless someone acts (a failed run awaiting retry is already queued again). */
 export const SETTLED_RUN_STATES: readonly RunState[] = ["done", "failed", "cancelled"];
 
+/**
+ * Lock the ensemble row first in every transaction that ends a run: the same order as
+ * cancelEnsemble (ensemble, then runs, then ledger and queue rows), so the two cannot deadlock.
+ */
+export async function lockEnsemble(ensembleId: string, transaction: Transaction): Promise<void> {
+  await modelsFor(transaction).Ensemble.findByPk(ensembleId, { transaction, lock: transaction.LOCK.UPDATE, attributes: ["id"] });
+}
+
 /** The ensemble state its runs' final states add up to. */
 export function ensembleOutcome(current: EnsembleState, counts: Partial<Record<RunState, number>>): EnsembleState {
   if (current === "cancelled") return "cancelled";

@@ -9,7 +9,7 @@ import { enqueue } from "@/lib/queue/enqueue";
 import { settleRun } from "@/lib/allocations/settle-run";
 import { transitionRun } from "./transition-run";
 import { retryPolicyOf, shouldRetry } from "./retry-policy";
-import { afterRunFinal } from "./after-run-final";
+import { afterRunFinal, lockEnsemble } from "./after-run-final";
 import type { FailureReason } from "@/models/run";
 
 /** Why an attempt failed, and what it cost. */
@@ -20,7 +20,7 @@ export type AttemptFailure = {
   exitCode?: number | null;
   startedAt?: Date | null;
   finishedAt?: Date | null;
-  /** Core-hours this attempt used (recorded in the event for settlement). */
+  /** Core-hours this attempt used (recorded in the event for settlement); leave out if an earlier event has them. */
   coreHours?: number;
 };
 
@@ -29,16 +29,20 @@ const STDERR_TAIL_CHARS = 4000;
 
 /** Fail the run's current attempt; returns whether it was queued again. */
 export async function failRun(runId: string, failure: AttemptFailure, options: { cause: string; transaction?: Transaction }): Promise<{ retried: boolean; why: string }> {
-  const { sequelize, Ensemble } = modelsFor(options.transaction);
+  const { sequelize, Ensemble, Run } = modelsFor(options.transaction);
   const work = async (transaction: Transaction) => {
-    const coreHours = failure.coreHours ?? 0;
+    const current = await Run.findByPk(runId, { attributes: ["ensembleId"], transaction });
+    if (current) await lockEnsemble(current.ensembleId, transaction);
+    // Only what this failure knows is written: a run failing after collection (import_rejected)
+    // keeps its exit code, stderr tail and core-hours, whose event already carries them.
     const { run } = await transitionRun(runId, "failed", {
       cause: options.cause, transaction,
-      detail: { reason: failure.reason, message: failure.detail, coreHours },
+      detail: { reason: failure.reason, message: failure.detail, ...(failure.coreHours !== undefined ? { coreHours: failure.coreHours } : {}) },
       patch: {
         failureReason: failure.reason, failureDetail: failure.detail,
-        stderrTail: failure.stderrTail ? failure.stderrTail.slice(-STDERR_TAIL_CHARS) : null,
-        exitCode: failure.exitCode ?? null, coreHoursUsed: coreHours,
+        ...(failure.stderrTail !== undefined ? { stderrTail: failure.stderrTail ? failure.stderrTail.slice(-STDERR_TAIL_CHARS) : null } : {}),
+        ...(failure.exitCode !== undefined ? { exitCode: failure.exitCode } : {}),
+        ...(failure.coreHours !== undefined ? { coreHoursUsed: failure.coreHours } : {}),
         ...(failure.startedAt ? { startedAt: failure.startedAt } : {}),
         ...(failure.finishedAt ? { finishedAt: failure.finishedAt } : {}),
       },

@@ -24,31 +24,35 @@ const t = useTestDatabase();
 const ROOT = path.resolve(import.meta.dirname, "..", "..", "..");
 let good: Awaited<ReturnType<typeof startNode>>;
 let bad: Awaited<ReturnType<typeof startNode>>;
+let forger: Awaited<ReturnType<typeof startNode>>;
 let smtp: MailStore;
 let broker: BrokerProcess;
 let people: Awaited<ReturnType<typeof makePeople>>;
-const clusters: Record<"good" | "bad" | "spoofed" | "short", Cluster> = {} as never;
+const clusters: Record<"good" | "bad" | "forger" | "spoofed" | "short", Cluster> = {} as never;
 
 beforeAll(async () => {
   await makeCatalogSamplers();
   people = await makePeople();
   good = await startNode({ slots: 2 });
   bad = await startNode({ slots: 2, samplerCommand: [process.execPath, path.join(import.meta.dirname, "fixtures", "failing-sampler.mjs"), "{runJson}"] });
+  // The fake-cluster tests' stand-in sampler: exit 0, but a bundle that is not an ising2d bundle.
+  forger = await startNode({ slots: 2, samplerCommand: [process.execPath, path.join(ROOT, "tests/integration/fake-cluster/fixtures/fake-sampler.mjs"), "{sampler}", "{runJson}", "{outDir}"] });
   smtp = await startSmtp();
   clusters.good = await makeClusterRow(good.node, good.clientKey, { name: "good" });
   clusters.bad = await makeClusterRow(bad.node, bad.clientKey, { name: "bad" });
+  clusters.forger = await makeClusterRow(forger.node, forger.clientKey, { name: "forger" });
   // Pinned to a key that is not the node's: every connection must be refused.
   const other = crypto.createHash("sha256").update("not the node's key").digest("base64").replace(/=+$/, "");
   clusters.spoofed = await makeClusterRow(good.node, good.clientKey, { name: "spoofed", fingerprint: `SHA256:${other}` });
-  // The cluster's own wall-time limit (settings.maxWallSeconds) caps each attempt at 4 s.
-  clusters.short = await makeClusterRow(good.node, good.clientKey, { name: "short", settings: { maxWallSeconds: 4 } });
+  // The cluster's own wall-time limit (settings.maxWallSeconds) caps each attempt at 2 s.
+  clusters.short = await makeClusterRow(good.node, good.clientKey, { name: "short", settings: { maxWallSeconds: 2 } });
   broker = new BrokerProcess(t, { dataDir: tempDir("broker"), smtpPort: smtp.port, healthPort: await freePort() });
   await broker.start();
 });
 
 afterAll(async () => {
   await broker?.stop();
-  await Promise.all([good?.node.close(), bad?.node.close(), smtp?.close(), stopBoss({ graceful: false })]);
+  await Promise.all([good?.node.close(), bad?.node.close(), forger?.node.close(), smtp?.close(), stopBoss({ graceful: false })]);
 });
 
 const ensembleState = (id: string) => async () => (await db().Ensemble.findByPk(id))!.state;
@@ -136,6 +140,20 @@ describe("broker flow", () => {
     expect(ledger.reserve).toBeCloseTo((ledger.charge ?? 0) + (ledger.release ?? 0), 4);
   });
 
+  it("a bundle the importer rejects fails the run with import_rejected and the reason, leaving no series", async () => {
+    const sub = await submit(people.researcher, isingSpec("forger", people.allocationName, {
+      scan: [], fixed: { L: 8, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 5, measurements: 20,
+    }));
+    await waitFor("ensemble failed", ensembleState(sub.ensembleId), (s) => s !== "active", 60_000, broker);
+    const run = (await db().Run.findByPk(sub.runIds[0]))!;
+    expect(run).toMatchObject({ state: "failed", failureReason: "import_rejected", exitCode: 0 });
+    expect(run.failureDetail).toMatch(/manifest|series|sampler|observable/i);
+    expect((await db().Import.findAll({ where: { runId: run.id } })).map((i) => i.state)).toEqual(["rejected"]);
+    expect(await db().Series.count({ where: { runId: run.id } })).toBe(0);
+    const ledger = await ledgerOf(sub.ensembleId);
+    expect(ledger.reserve).toBeCloseTo((ledger.charge ?? 0) + (ledger.release ?? 0), 4);
+  });
+
   it("a host-key mismatch is refused: cluster unhealthy with a note, admins and coordinators e-mailed, nothing dispatched", async () => {
     const sub = await submit(people.researcher, isingSpec("spoofed", people.allocationName, { scan: [], fixed: { L: 8, T: 2.3, algorithm: "metropolis" }, replicas: 1 }));
     const cluster = await waitFor("cluster unhealthy", async () => (await db().Cluster.findByPk(clusters.spoofed.id))!, (c) => !c.healthy, 30_000, broker);
@@ -154,21 +172,25 @@ describe("broker flow", () => {
   });
 
   it("a run stopped at the cluster's wall-time limit resumes from its checkpoint; its series is byte-identical to an uninterrupted run", async () => {
-    // L=16, 1000 + 3000×150 sweeps: about 6 s of work on an idle machine, so a 4 s limit per attempt
-    // (sampler startup included) interrupts it at least once, and a machine three times slower still
-    // finishes within the 10 attempts the spec allows.
+    // L=16, 1000 + 4000×150 sweeps: several seconds of work, so the cluster's 2 s limit stops the
+    // first attempt part-way. Once one stop has written a checkpoint, the coordinator raises the
+    // limit (as for a longer partition): the attempts after it resume from the checkpoint and finish.
+    // Raising it keeps the number of attempts bounded however fast or slow the machine is.
     const spec = isingSpec("short", people.allocationName, {
-      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 3000, interval: 150,
-      resources: { cores: 1, wallMinutes: 1, memoryMb: 256 }, retry: { maxAttempts: 10, on: [], resumeOnWallTime: true },
+      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 4000, interval: 150,
+      resources: { cores: 1, wallMinutes: 10, memoryMb: 256 }, retry: { maxAttempts: 10, on: [], resumeOnWallTime: true },
     });
     const sub = await submit(people.researcher, spec);
+    const runId = sub.runIds[0];
+    await waitFor("a checkpointed wall-time stop", () => eventsOf(runId),
+      (evs) => evs.some((e) => e.toState === "failed" && String((e.detail as { message?: string }).message).includes("checkpoint written")), 90_000, broker);
+    await clusters.short.update({ settings: { maxWallSeconds: 600 } });
     await waitFor("ensemble done", ensembleState(sub.ensembleId), (s) => s !== "active", 120_000, broker);
-    const run = (await db().Run.findByPk(sub.runIds[0]))!;
+    const run = (await db().Run.findByPk(runId))!;
     expect({ state: run.state, reason: run.failureReason, detail: run.failureDetail, attempt: run.attempt }).toMatchObject({ state: "done" });
     expect(run.attempt).toBeGreaterThan(1);
-    console.log(`wall-time run: done after ${run.attempt} attempts of at most 4 s each`);
-    const events = await eventsOf(run.id);
-    const stops = events.filter((e) => e.toState === "failed");
+    console.log(`wall-time run: done after ${run.attempt} attempts (2 s limit, then 600 s)`);
+    const stops = (await eventsOf(run.id)).filter((e) => e.toState === "failed");
     expect(stops.length).toBe(run.attempt - 1);
     for (const e of stops) expect((e.detail as { reason: string }).reason).toBe("wall_time_exceeded");
     expect(good.node.scheduler.report([run.id], false).runs[0].attempt).toBe(run.attempt);
@@ -183,7 +205,7 @@ describe("broker flow", () => {
     fs.rmSync(dir, { recursive: true, force: true });
     const ledger = await ledgerOf(sub.ensembleId);
     expect(ledger.reserve).toBeCloseTo((ledger.charge ?? 0) + (ledger.release ?? 0), 4);
-  });
+  }, 240_000);
 
   it("cancelling an ensemble stops its running and dispatched runs on the cluster and settles them", async () => {
     const sub = await submit(people.researcher, isingSpec("good", people.allocationName, {

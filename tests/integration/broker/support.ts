@@ -43,10 +43,22 @@ export function freePort(): Promise<number> {
   });
 }
 
+/**
+ * An ed25519 pair that ssh2 can read back. ssh2's generateKeyPairSync now and then (about 1 in 400)
+ * writes a key whose public half lost a leading zero byte, which its own parseKey then refuses.
+ */
+export function clientKeyPair(): { private: string; public: string } {
+  for (;;) {
+    const pair = ssh2.utils.generateKeyPairSync("ed25519");
+    const parsed = ssh2.utils.parseKey(pair.private);
+    if (!(parsed instanceof Error)) return pair;
+  }
+}
+
 /** A fake node with one authorized client key (returned), on a random port. */
 export async function startNode(o: FakeClusterOptions = {}): Promise<{ node: FakeCluster; clientKey: string; stateDir: string }> {
   const stateDir = tempDir("node");
-  const pair = ssh2.utils.generateKeyPairSync("ed25519");
+  const pair = clientKeyPair();
   fs.writeFileSync(authorizedKeysPath(stateDir), `# broker test client\n${pair.public}\n`);
   const node = await startFakeCluster({ port: 0, stateDir, killGraceMs: 2000, slots: 2, ...o });
   return { node, clientKey: pair.private, stateDir };
