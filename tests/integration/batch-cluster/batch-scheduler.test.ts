@@ -67,6 +67,7 @@ describe.skipIf(!conn)("batch scheduler over SSH (real scheduler on loopback)", 
 
     const done = await waitTerminal(a, ids, 90_000);
     for (const s of done) expect(s, s.stderrTail).toMatchObject({ state: "exited", exitCode: 0, failure: null, checkpointed: false });
+    expect(await a.health()).toMatchObject({ ok: true, slots: c.cpus, running: 0, queued: 0 });
     expect(done.map((s) => s.jobId)).toEqual(sub.map((s) => (s as { jobId: string }).jobId));
     expect(done.every((s) => s.progress?.sweepsDone === 700 && s.progress.sweepsTotal === 700)).toBe(true);
     // Good citizenship: never more than one job listing per query interval (1 s here).
