@@ -5,6 +5,7 @@ import "server-only";
 // This is the one lib/ module that imports from broker/: the adapters are the broker's, and
 // the contract puts the Cluster-row-to-adapter step beside the other cluster logic.
 import { FakeClusterAdapter } from "@/broker/adapters/fake-cluster-adapter";
+import { BatchSchedulerAdapter } from "@/broker/adapters/batch-adapter";
 import { HostKeyMismatchError } from "@/broker/adapters/errors";
 import type { SshConnection } from "@/broker/adapters/ssh-connection";
 import type { ClusterAdapter } from "@/broker/adapters/types";
@@ -25,7 +26,7 @@ const connectionKey = (c: Cluster) => JSON.stringify([c.kind, c.host, c.port, c.
  * alerts admins and coordinators before the error goes on to the caller.
  */
 export class GuardedAdapter implements ClusterAdapter {
-  constructor(readonly clusterId: string, readonly inner: FakeClusterAdapter) {}
+  constructor(readonly clusterId: string, readonly inner: ClusterAdapter & { readonly connection: SshConnection }) {}
 
   /** The SSH connection, for its round-trip counters. */
   get connection(): SshConnection { return this.inner.connection; }
@@ -49,18 +50,29 @@ export class GuardedAdapter implements ClusterAdapter {
 }
 
 function build(cluster: Cluster): GuardedAdapter {
-  if (cluster.kind !== "fake-ssh") throw new Error(`cluster ${cluster.name}: no adapter for kind "${cluster.kind}" yet`);
-  const inner = new FakeClusterAdapter({
+  const ssh = {
     host: cluster.host, port: cluster.port, username: cluster.username,
     privateKey: openSecret(cluster.privateKeyEncrypted),
     hostKeyFingerprint: cluster.hostKeyFingerprint,
-    // The ergodex-node protocol fixes the layout: each run's folder sits at the SFTP root
-    // (the node's own work dir, which cluster.workDir names for people).
-    workDir: "/",
     logger: log,
     reconnect: { initialDelayMs: 250, maxDelayMs: 5_000, maxAttempts: env.isTest ? 3 : 6 },
-  });
-  return new GuardedAdapter(cluster.id, inner);
+  };
+  const settings = cluster.settings ?? {};
+  switch (cluster.kind) {
+    case "fake-ssh":
+      // The ergodex-node protocol fixes the layout: each run's folder sits at the SFTP root
+      // (the node's own work dir, which cluster.workDir names for people).
+      return new GuardedAdapter(cluster.id, new FakeClusterAdapter({ ...ssh, workDir: "/" }));
+    case "batch-ssh":
+      return new GuardedAdapter(cluster.id, new BatchSchedulerAdapter({
+        ...ssh, workRoot: cluster.workDir,
+        samplerCommand: settings.samplerCommand ?? "node_modules/.bin/tsx cluster-fake/samplers/cli.ts",
+        partition: settings.partition ?? null, account: settings.account ?? null, prelude: settings.prelude ?? null,
+        ...(settings.pollSeconds ? { queryIntervalMs: settings.pollSeconds * 1000 } : {}),
+      }));
+    default:
+      throw new Error(`cluster ${cluster.name}: no adapter for kind "${String(cluster.kind)}"`);
+  }
 }
 
 /** The process's adapter for `cluster`, connecting lazily on first use. */
