@@ -53,7 +53,10 @@ export SLURM_CONF
 # A copy in the cluster user's home, so the checkout's own permissions do not matter. node_modules
 # is hard-linked (same file system) to keep this fast; falls back to a real copy.
 install_samplers() {
-  local tmp="$SAMPLERS.new"
+  local tmp="$SAMPLERS.new" stamp
+  # Unchanged sources: keep the installed copy (replacing it under running tasks could break them).
+  stamp=$(cd "$BC_ROOT" && cat package.json package-lock.json tsconfig.json cluster-fake/samplers/* lib/samplers/* 2>/dev/null | sha256sum | cut -c1-64)
+  [ -f "$SAMPLERS/.stamp" ] && [ "$(cat "$SAMPLERS/.stamp")" = "$stamp" ] && return 0
   rm -rf "$tmp"; mkdir -p "$tmp/cluster-fake" "$tmp/lib" "$tmp/bin"
   cp "$BC_ROOT/package.json" "$BC_ROOT/tsconfig.json" "$tmp/"
   cp -r "$BC_ROOT/cluster-fake/samplers" "$tmp/cluster-fake/"
@@ -66,6 +69,7 @@ install_samplers() {
 exec node --import "$SAMPLERS/node_modules/tsx/dist/loader.mjs" "$SAMPLERS/cluster-fake/samplers/cli.ts" "\$@"
 SH
   chmod 755 "$tmp/bin/ergodex-sampler"
+  echo "$stamp" > "$tmp/.stamp"
   chmod -R a+rX "$tmp"
   rm -rf "$SAMPLERS"; mv "$tmp" "$SAMPLERS"
 }

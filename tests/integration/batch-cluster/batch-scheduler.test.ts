@@ -105,6 +105,19 @@ describe.skipIf(!conn)("batch scheduler over SSH (real scheduler on loopback)", 
     expect(s.failure!.detail).toMatch(/^exit code 2: sampler: /);
   }, 90_000);
 
+  it("puts runs with different resources into separate arrays, one sbatch each", async () => {
+    const a = open();
+    const ids = [randomUUID(), randomUUID(), randomUUID()];
+    await a.stage(ids.map((id) => ({ runId: id, runJson: isingRun(id) })));
+    const sub = await a.submit(ids.map((id, i) => ({ runId: id, dispatchToken: randomUUID(), resources: { ...RES, memoryMb: i === 1 ? 512 : 256 } })));
+    const arrays = sub.map((s) => (s as { jobId: string }).jobId.split("_")[0]);
+    expect(a.schedulerCalls.sbatch).toBe(2);
+    expect(arrays[0]).toBe(arrays[2]);
+    expect(arrays[1]).not.toBe(arrays[0]);
+    const done = await waitTerminal(a, ids, 60_000);
+    expect(done.map((s) => s.state)).toEqual(["exited", "exited", "exited"]);
+  }, 90_000);
+
   it("after a broker crash, the same runs under the same tokens are found by job name and not submitted twice", async () => {
     const ids = [randomUUID(), randomUUID(), randomUUID()];
     const tokens = ids.map(() => randomUUID());
