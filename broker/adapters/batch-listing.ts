@@ -70,8 +70,8 @@ export class SchedulerListing {
   async get(o: { fresh?: boolean } = {}): Promise<SchedulerRow[]> {
     if (this.rows && !o.fresh && this.gate.age() < this.intervalMs) return this.rows;
     await this.gate.pass();
-    this.stats.squeue++;
     const r = await this.conn.exec(squeueCommand(await this.user()), { idempotent: true });
+    this.stats.squeue++; // counted once the scheduler has answered
     if (r.code !== 0) throw new ClusterProtocolError(`squeue failed with exit ${r.code}: ${r.stderr.trim().slice(0, 300)}`, r.code);
     this.rows = parseSqueue(r.stdout).filter((x) => groupIdFromJobName(x.name) !== null);
     return this.rows;
