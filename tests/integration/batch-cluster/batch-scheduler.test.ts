@@ -40,6 +40,7 @@ describe.skipIf(!conn)("batch scheduler over SSH (real scheduler on loopback)", 
     await Promise.all(adapters.map((a) => a.close()));
     stopBatchCluster();
     fs.rmSync(tmp, { recursive: true, force: true });
+    fs.rmSync(c.workRoot, { recursive: true, force: true }); // the staged runs of this suite (same machine)
   });
 
   it("refuses a login node whose host key is not the pinned one, before sending anything", async () => {
