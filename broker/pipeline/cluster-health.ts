@@ -22,3 +22,15 @@ export async function markUnreachable(cluster: Cluster, err: Error): Promise<voi
   });
   cluster.healthy = false;
 }
+
+/** A fault of the cluster's configuration (our key refused or unreadable): mark it and alert the staff. */
+export async function markFaulty(cluster: Cluster, code: string, message: string): Promise<void> {
+  const { sequelize, Cluster: ClusterModel } = db();
+  await sequelize.transaction(async (transaction) => {
+    const c = await ClusterModel.findByPk(cluster.id, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!c || (!c.healthy && c.healthNote?.startsWith(`${code}:`))) return;
+    await c.update({ healthy: false, healthNote: `${code}: ${message} (${new Date().toISOString()})` }, { transaction });
+    await alertClusterFault(c.id, code, message, { transaction });
+  });
+  cluster.healthy = false;
+}

@@ -14,10 +14,12 @@ import { requeueStrandedMail, requeueUnreportedFailures } from "@/lib/mail/sweep
 import { withLock } from "./locks";
 import { pollCluster, type PollOutcome } from "./poll";
 import { dispatchCluster, type DispatchOutcome } from "./dispatch";
-import { HOST_KEY_NOTE, markContact, markUnreachable } from "./cluster-health";
+import { UNREACHABLE_NOTE, markContact, markFaulty, markUnreachable } from "./cluster-health";
 import { activeClusters } from "./cluster-runs";
 
-/** A host-key-mismatched cluster is probed at most this often (until someone pins the right key). */
+/** Faults of the cluster's configuration that a person must fix: marked, alerted, probed rarely. */
+const CONFIG_FAULTS = new Set(["auth_failed", "bad_private_key"]);
+/** A cluster unhealthy for any reason but an outage is probed at most this often. */
 const MISMATCH_PROBE_MS = 30_000;
 const lastProbe = new Map<string, number>();
 /** The mail safety nets (lib/mail/sweep.ts) run about once a minute. */
@@ -33,13 +35,16 @@ export async function serveCluster(cluster: Cluster, log: Logger): Promise<Cycle
   const locked = await withLock(`cluster:${cluster.id}`, async () => {
     await cluster.reload();
     if (!cluster.active) return { skipped: "inactive" };
-    const adapter = adapterFor(cluster);
     try {
       if (!cluster.healthy) {
-        if (cluster.healthNote?.startsWith(HOST_KEY_NOTE)) {
-          if (Date.now() - (lastProbe.get(cluster.id) ?? 0) < MISMATCH_PROBE_MS) return { skipped: "host key mismatch" };
+        // An outage may end any moment; a wrong key or host key needs a person, so probe rarely.
+        if (!cluster.healthNote?.startsWith(UNREACHABLE_NOTE)) {
+          if (Date.now() - (lastProbe.get(cluster.id) ?? 0) < MISMATCH_PROBE_MS) return { skipped: cluster.healthNote ?? "unhealthy" };
           lastProbe.set(cluster.id, Date.now());
         }
+      }
+      const adapter = adapterFor(cluster);
+      if (!cluster.healthy) {
         await adapter.health();
         await markContact(cluster);
         clog.info("cluster answers again: healthy");
@@ -49,10 +54,19 @@ export async function serveCluster(cluster: Cluster, log: Logger): Promise<Cycle
       if (poll.watched > 0 || dispatch.submitted + dispatch.reconciled > 0) await markContact(cluster);
       return { poll, dispatch };
     } catch (err) {
-      if (err instanceof HostKeyMismatchError) return { error: err.message }; // the adapter marked and alerted
+      if (err instanceof HostKeyMismatchError) {
+        lastProbe.set(cluster.id, Date.now()); // the adapter marked and alerted; next look in 30 s
+        return { error: err.message };
+      }
       if (err instanceof ClusterError && err.transient) {
         await markUnreachable(cluster, err);
         clog.warn({ err: err.message }, "cluster unreachable");
+        return { error: err.message };
+      }
+      if (err instanceof ClusterError && CONFIG_FAULTS.has(err.code)) {
+        await markFaulty(cluster, err.code, err.message);
+        lastProbe.set(cluster.id, Date.now());
+        clog.error({ err: err.message }, "cluster refused our key or our key is unusable");
         return { error: err.message };
       }
       throw err;

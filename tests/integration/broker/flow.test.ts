@@ -16,7 +16,7 @@ import { cancelEnsemble } from "@/lib/ensembles/cancel-ensemble";
 import { loadIdentity } from "@/lib/auth/identity";
 import { db, type Cluster, type User } from "@/models";
 import {
-  BrokerProcess, freePort, isingSpec, ledgerOf, makeCatalogSamplers, makeClusterRow, makePeople, startNode, startSmtp,
+  BrokerProcess, clientKeyPair, freePort, isingSpec, ledgerOf, makeCatalogSamplers, makeClusterRow, makePeople, startNode, startSmtp,
   stateCounts, submit, tempDir, waitFor,
 } from "./support";
 
@@ -169,6 +169,23 @@ describe("broker flow", () => {
     expect(h.status).toBe("degraded");
     expect(h.clusters.find((c) => c.name === "spoofed")?.healthy).toBe(false);
     await clusters.spoofed.update({ active: false }); // out of the way of the other tests
+  });
+
+  it("a cluster that refuses our key is marked unhealthy and the staff alerted, not retried every cycle", async () => {
+    const stranger = clientKeyPair(); // not in the node's authorized_keys
+    const refused = await makeClusterRow(good.node, stranger.private, { name: "refused" });
+    const sub = await submit(people.researcher, isingSpec("refused", people.allocationName, { scan: [], fixed: { L: 8, T: 2.3, algorithm: "metropolis" }, replicas: 1 }));
+    const c = await waitFor("cluster unhealthy", async () => (await db().Cluster.findByPk(refused.id))!, (x) => !x.healthy, 30_000, broker);
+    expect(c.healthNote).toMatch(/^auth_failed: 127\.0\.0\.1 refused our SSH key/);
+    const alerts = await waitFor("alert", () => db().OutboxMessage.findAll({ where: { kind: "cluster.fault" } }),
+      (m) => m.some((x) => x.subject.includes('"refused"')), 30_000, broker);
+    expect(alerts.filter((x) => x.subject.includes('"refused"'))).toHaveLength(1);
+    expect(await stateCounts(sub.ensembleId)).toEqual({ queued: 1 });
+    // Three more cycles: the broker does not knock again (it probes such a cluster every 30 s).
+    const knocks = good.node.stats.authRejected;
+    await new Promise((r) => setTimeout(r, 3000));
+    expect(good.node.stats.authRejected).toBe(knocks);
+    await refused.update({ active: false });
   });
 
   it("a run stopped at the cluster's wall-time limit resumes from its checkpoint; its series is byte-identical to an uninterrupted run", async () => {
