@@ -4,7 +4,7 @@ import type { ModelSet } from "./index";
 /** Declare every association on one set of model classes. */
 export function associate(m: ModelSet): void {
   const { User, Group, Membership, ApiToken, AuditEntry, Allocation, LedgerEntry, Cluster, Sampler, Ensemble,
-    ParameterPoint, Run, RunEvent, Artifact, RunArtifact, Import, Series, Estimate, Manuscript, Exhibit } = m;
+    ParameterPoint, Run, RunEvent, Artifact, RunArtifact, Import, Series, Estimate, Manuscript, Exhibit, SavedView } = m;
 
   User.hasMany(Membership, { as: "memberships", foreignKey: "userId" });
   Group.hasMany(Membership, { as: "memberships", foreignKey: "groupId" });
@@ -60,4 +60,7 @@ export function associate(m: ModelSet): void {
   Manuscript.belongsTo(User, { as: "frozenBy", foreignKey: "frozenById" });
   Manuscript.hasMany(Exhibit, { as: "exhibits", foreignKey: "manuscriptId" });
   Exhibit.belongsTo(Manuscript, { as: "manuscript", foreignKey: "manuscriptId" });
+
+  SavedView.belongsTo(User, { as: "owner", foreignKey: "ownerId" });
+  SavedView.belongsTo(Group, { as: "group", foreignKey: "groupId" });
 }

@@ -24,6 +24,7 @@ import { Estimate, initEstimate } from "./estimate";
 import { Manuscript, initManuscript } from "./manuscript";
 import { Exhibit, initExhibit } from "./exhibit";
 import { OutboxMessage, initOutboxMessage } from "./outbox-message";
+import { SavedView, initSavedView } from "./saved-view";
 
 export * from "./user";
 export * from "./group";
@@ -47,6 +48,7 @@ export * from "./estimate";
 export * from "./manuscript";
 export * from "./exhibit";
 export * from "./outbox-message";
+export * from "./saved-view";
 
 const definitions = {
   User: [User, initUser],
@@ -71,6 +73,7 @@ const definitions = {
   Manuscript: [Manuscript, initManuscript],
   Exhibit: [Exhibit, initExhibit],
   OutboxMessage: [OutboxMessage, initOutboxMessage],
+  SavedView: [SavedView, initSavedView],
 } as const;
 
 type Definitions = typeof definitions;
