@@ -5,9 +5,10 @@ import { formatPlain } from "@/lib/format";
 
 /** Normalised autocorrelation ρ(t) and τ_int(W) against the lag, with the chosen window W marked. */
 export function AcfChart({ a }: { a: RunAnalysis }) {
-  const data = a.acf.map((rho, t) => ({ t, rho, tau: a.tauIntByWindow?.[t] }));
+  const data = a.acf.rho.map((rho, t) => ({ t, rho, tau: a.acf.tauIntByWindow[t] }));
+  const W = a.acf.window;
   return (
-    <figure data-testid="acf-chart" aria-label={`normalised autocorrelation with window ${a.window}`}>
+    <figure data-testid="acf-chart" aria-label={`normalised autocorrelation with window ${W}`}>
       <ResponsiveContainer width="100%" height={220}>
         <LineChart data={data} margin={{ top: 8, right: 16, bottom: 16, left: 8 }}>
           <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" />
@@ -17,9 +18,9 @@ export function AcfChart({ a }: { a: RunAnalysis }) {
           <Tooltip formatter={(v) => formatPlain(Number(v), 5)} labelFormatter={(l) => `lag ${l}`} />
           <Legend verticalAlign="top" height={20} wrapperStyle={{ fontSize: 11 }} />
           <ReferenceLine yAxisId="rho" y={0} stroke="#c9ced3" />
-          <ReferenceLine yAxisId="rho" x={a.window} stroke="#D55E00" strokeWidth={2} label={{ value: `W = ${a.window}`, position: "insideTopRight", fontSize: 11, fill: "#D55E00" }} />
+          <ReferenceLine yAxisId="rho" x={W} stroke="#D55E00" strokeWidth={2} label={{ value: `W = ${W}`, position: "insideTopRight", fontSize: 11, fill: "#D55E00" }} />
           <Line yAxisId="rho" dataKey="rho" name="ρ(t)" dot={false} stroke="#0072B2" isAnimationActive={false} />
-          {a.tauIntByWindow ? <Line yAxisId="tau" dataKey="tau" name="τ_int(W)" dot={false} stroke="#009E73" strokeDasharray="4 2" isAnimationActive={false} /> : null}
+          {<Line yAxisId="tau" dataKey="tau" name="τ_int(W)" dot={false} stroke="#009E73" strokeDasharray="4 2" isAnimationActive={false} />}
         </LineChart>
       </ResponsiveContainer>
     </figure>

@@ -13,7 +13,7 @@ import { EstimateVersions } from "./estimate-versions";
 type Rule = "wolff" | "madras-sokal";
 
 /** A run's re-analysis: move the cut or change the window rule, see the estimate live, save it as a new version. */
-export function AnalysisView({ runId, observables }: { runId: string; observables: string[] }) {
+export function AnalysisView({ runId, observables, people, canSave }: { runId: string; observables: string[]; people: Record<string, string>; canSave: boolean }) {
   const [observable, setObservable] = useState(observables[0] ?? "");
   const [cut, setCut] = useState<number | null>(null); // null: the automatic (MSER-5) cut
   const [rule, setRule] = useState<Rule>("wolff");
@@ -26,7 +26,8 @@ export function AnalysisView({ runId, observables }: { runId: string; observable
   const { data: a, error, isFetching } = useRunAnalysis(runId, asked);
   const save = useSaveEstimate(runId);
   const shownCut = cut ?? a?.cut.index ?? 0;
-  const maxCut = a ? Math.max(0, Math.floor((a.series.nTotal ?? a.estimate.nTotal ?? a.series.value.length) - 20)) : 0;
+  // the analysis needs points after the cut; half the series is a generous upper end for a manual cut
+  const maxCut = a ? Math.max(0, a.series.total - 50) : 0;
 
   if (observables.length === 0) return <p className="text-sm text-ink-soft">This run has no imported series yet, so there is nothing to analyse. Its series arrive when the run is collected.</p>;
   return (
@@ -46,21 +47,21 @@ export function AnalysisView({ runId, observables }: { runId: string; observable
               <div className="text-2xl font-semibold num" data-testid="live-estimate" title={`mean ${a.estimate.mean} ± ${a.estimate.error}`}>{concise(a.estimate.mean, a.estimate.error)}</div>
             </div>
             <Fact label="τ_int" testId="live-tau">{concise(a.estimate.tauInt, a.estimate.tauIntError)}</Fact>
-            <Fact label="window W" testId="live-window">{a.window}</Fact>
+            <Fact label="window W" testId="live-window">{a.acf.window} <span className="text-ink-faint text-xs">({a.acf.method})</span></Fact>
             <Fact label="points after cut">{a.estimate.n.toLocaleString("en-GB")}</Fact>
             <Fact label="cut" testId="live-cut">{a.cut.index.toLocaleString("en-GB")} <span className="text-ink-faint text-xs">({a.cut.rule})</span></Fact>
             <span className="text-xs text-ink-faint" aria-live="polite">{isFetching ? "recomputing…" : ""}</span>
             <div className="ml-auto flex items-center gap-2">
               {cut !== null ? <Button variant="quiet" onClick={() => setCut(null)}>Automatic cut</Button> : null}
-              <Button onClick={() => save.mutate({ observable, cut: cut ?? undefined, window: rule })} disabled={save.isPending || isFetching}>
+              {canSave ? <Button onClick={() => save.mutate({ observable, cut: cut ?? undefined, window: rule })} disabled={save.isPending || isFetching}>
                 {save.isPending ? "Saving…" : "Save as new version"}
-              </Button>
+              </Button> : <span className="text-xs text-ink-faint">Viewers may try choices; saving needs a researcher.</span>}
             </div>
           </div>
         ) : <p className="text-sm text-ink-soft mt-3">Computing the analysis…</p>}
         {save.error ? <p role="alert" className="text-sm text-danger mt-2">Not saved: {save.error.message}</p> : null}
-        {save.isSuccess ? <p className="text-sm text-accent-strong mt-2" data-testid="saved">Saved as version v{save.data?.version ?? "?"}; the point estimates of its ensemble were recomputed.</p> : null}
-        {a?.estimate.warnings?.length ? <ul className="mt-2 text-xs text-danger list-disc pl-5">{a.estimate.warnings.map((w) => <li key={w}>{w}</li>)}</ul> : null}
+        {save.isSuccess ? <p className="text-sm text-accent-strong mt-2" data-testid="saved">Saved as version v{save.data?.estimate.version}{save.data?.previousVersion ? ` (v${save.data.previousVersion} kept)` : ""}; the point estimates of its ensemble were recomputed.</p> : null}
+        {a?.estimate.warnings.length ? <ul className="mt-2 text-xs text-danger list-disc pl-5">{a.estimate.warnings.map((w) => <li key={w}>{w}</li>)}</ul> : null}
       </Card>
       {a ? (
         <>
@@ -69,7 +70,7 @@ export function AnalysisView({ runId, observables }: { runId: string; observable
             <Card title={`Normalised autocorrelation · τ_int = ${formatPlain(a.estimate.tauInt, 4)}`}><AcfChart a={a} /></Card>
             <Card title="Blocking curve"><BlockingChart a={a} /></Card>
           </div>
-          <Card title="Stored versions"><EstimateVersions versions={a.versions ?? (a.current ? [a.current] : [])} /></Card>
+          <Card title="Stored versions"><EstimateVersions versions={a.versions} people={people} /></Card>
         </>
       ) : null}
     </div>

@@ -5,6 +5,7 @@ import { formatPlain } from "@/lib/format";
 
 /** The blocking curve: naive error of the mean against the blocking level, its plateau marked. */
 export function BlockingChart({ a }: { a: RunAnalysis }) {
+  if (!a.blocking) return <p className="text-sm text-ink-soft">No blocking curve: {a.blockingProblem ?? "too few points after the cut"}.</p>;
   const data = a.blocking.levels.map((l) => ({ level: l.level, error: l.error, eoe: l.errorOfError, blocks: l.nBlocks }));
   return (
     <figure data-testid="blocking-chart" aria-label="blocking curve">
@@ -15,7 +16,7 @@ export function BlockingChart({ a }: { a: RunAnalysis }) {
           <YAxis tick={{ fontSize: 11 }} tickFormatter={(v: number) => formatPlain(v, 3)} width={64} />
           <Tooltip formatter={(v) => formatPlain(Number(v), 5)} labelFormatter={(l) => `level ${l}`} />
           <ReferenceLine y={a.estimate.error} stroke="#009E73" strokeDasharray="4 2" label={{ value: "Γ-method error", position: "insideTopLeft", fontSize: 11, fill: "#009E73" }} />
-          {a.blocking.plateau ? <ReferenceLine x={a.blocking.plateau.level} stroke="#D55E00" label={{ value: "plateau", position: "insideTopRight", fontSize: 11, fill: "#D55E00" }} /> : null}
+          {a.blocking.plateauFound ? <ReferenceLine x={a.blocking.plateau.level} stroke="#D55E00" label={{ value: "plateau", position: "insideTopRight", fontSize: 11, fill: "#D55E00" }} /> : null}
           <Line dataKey="error" name="error" stroke="#0072B2" isAnimationActive={false}>
             <ErrorBar dataKey="eoe" width={4} stroke="#0072B2" />
           </Line>

@@ -5,7 +5,7 @@ import { Time } from "@/components/ui/time";
 const tau = (v: EstimateVersion) => (v.tauInt === null ? "—" : v.tauIntError ? concise(v.tauInt, v.tauIntError) : formatPlain(v.tauInt, 4));
 
 /** Every stored estimate version of one observable, newest first: old ones are kept, with who chose them and when. */
-export function EstimateVersions({ versions }: { versions: EstimateVersion[] }) {
+export function EstimateVersions({ versions, people }: { versions: EstimateVersion[]; people: Record<string, string> }) {
   if (versions.length === 0) return <p className="text-sm text-ink-soft">No stored estimate for this observable yet.</p>;
   const sorted = [...versions].sort((a, b) => b.version - a.version);
   return (
@@ -20,8 +20,8 @@ export function EstimateVersions({ versions }: { versions: EstimateVersion[] }) 
             <td className="n">{v.thermCut.toLocaleString("en-GB")}</td>
             <td className="n">{v.window ?? "—"}</td>
             <td className="text-xs text-ink-soft">{v.method} <span className="text-ink-faint">v{v.analysisVersion}</span></td>
-            <td className="text-sm">{v.chosenBy?.name ?? <span className="text-ink-faint">automatic (import)</span>}</td>
-            <td className="text-xs">{v.chosenAt || v.createdAt ? <Time at={(v.chosenAt ?? v.createdAt)!} /> : "—"}</td>
+            <td className="text-sm">{v.chosenById ? (people[v.chosenById] ?? <span className="mono text-xs">{v.chosenById.slice(0, 8)}</span>) : <span className="text-ink-faint">automatic (at import)</span>}</td>
+            <td className="text-xs"><Time at={v.chosenAt ?? v.createdAt} /></td>
           </tr>
         ))}
       </tbody>

@@ -11,15 +11,13 @@ export function SpectrumView({ runId }: { runId: string }) {
   if (error) return <Card title="Spectrum"><p role="alert" className="text-sm text-danger">Could not load the spectrum: {error.message}</p></Card>;
   if (!data) return null;
   const { weyl } = data;
-  // Weyl's law N(λ) ≈ A λ^{d/2}, drawn only over the window it was fitted on
-  const counting = data.counting.lambda.map((l, i) => ({
-    l, N: data.counting.N[i],
-    fit: l > 0 && l >= weyl.window[0] && l <= weyl.window[1] ? Math.exp(weyl.logPrefactor) * l ** (weyl.dimension / 2) : undefined,
-  })).filter((p) => p.l > 0 && p.N > 0);
-  const ds = data.heatKernel.sigma.map((s, i) => ({ s, d: data.heatKernel.spectralDimension[i] })).filter((p) => p.s > 0);
+  // log axes: only positive λ, N and σ can be drawn
+  const counting = data.counting.filter((p) => p.lambda > 0 && p.N > 0)
+    .map((p) => ({ l: p.lambda, N: p.N, fit: weyl && p.weyl && p.lambda >= weyl.window[0] && p.lambda <= weyl.window[1] ? p.weyl : undefined }));
+  const ds = data.heatKernel.filter((p) => p.sigma > 0).map((p) => ({ s: p.sigma, d: p.ds }));
   return (
     <div className="grid gap-4 lg:grid-cols-2" data-testid="spectrum">
-      <Card title={`Counting function · Weyl dimension ${concise(weyl.dimension, weyl.dimensionError)}`}>
+      <Card title={weyl ? `Counting function · Weyl dimension ${concise(weyl.dimension, weyl.dimensionError)}` : "Counting function"}>
         <ResponsiveContainer width="100%" height={240}>
           <LineChart data={counting} margin={{ top: 8, right: 16, bottom: 16, left: 8 }}>
             <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" />
@@ -28,10 +26,10 @@ export function SpectrumView({ runId }: { runId: string }) {
             <Tooltip formatter={(v) => formatPlain(Number(v), 5)} labelFormatter={(l) => `λ = ${formatPlain(Number(l), 5)}`} />
             <Legend verticalAlign="top" height={20} wrapperStyle={{ fontSize: 11 }} />
             <Line dataKey="N" name="N(λ)" type="stepAfter" dot={false} stroke="#0072B2" isAnimationActive={false} />
-            <Line dataKey="fit" name={`Weyl fit, d = ${formatPlain(weyl.dimension, 4)}`} dot={false} stroke="#D55E00" strokeWidth={2} connectNulls={false} isAnimationActive={false} />
+            <Line dataKey="fit" name={weyl ? `Weyl fit, d = ${formatPlain(weyl.dimension, 4)}` : "Weyl fit"} dot={false} stroke="#D55E00" strokeWidth={2} connectNulls={false} isAnimationActive={false} />
           </LineChart>
         </ResponsiveContainer>
-        <p className="text-xs text-ink-faint">Fitted on λ from {formatPlain(weyl.window[0], 4)} to {formatPlain(weyl.window[1], 4)} ({weyl.points} distinct eigenvalues); {weyl.zeroModes} zero mode(s) left out.</p>
+        {weyl ? <p className="text-xs text-ink-faint">Fitted on λ from {formatPlain(weyl.window[0], 4)} to {formatPlain(weyl.window[1], 4)} ({weyl.points} distinct eigenvalues); {weyl.zeroModes} zero mode(s) left out; {data.eigenvalues.toLocaleString("en-GB")} eigenvalues{data.shift ? `, shifted by ${formatPlain(data.shift, 4)} to be non-negative` : ""}.</p> : <p role="alert" className="text-xs text-danger">No Weyl fit: {data.weylProblem}</p>}
       </Card>
       <Card title="Spectral dimension d_s(σ)">
         <ResponsiveContainer width="100%" height={240}>

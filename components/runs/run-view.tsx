@@ -61,7 +61,10 @@ export function RunView({ initial }: { initial: RunDetail }) {
           </dl>
         </Card>
       </div>
-      <Card title="Estimates"><EstimatesTable estimates={r.estimates} state={r.state} /></Card>
+      <Card title="Estimates">
+        <EstimatesTable estimates={r.estimates} state={r.state} />
+        {r.estimates.length ? <Link href={`/runs/${r.id}/analysis`} className="inline-block mt-3 text-sm text-accent hover:underline">Analyse this run: thermalisation cut, autocorrelation, blocking →</Link> : null}
+      </Card>
       <Card title="Events"><EventsTimeline events={r.events} /></Card>
     </div>
   );

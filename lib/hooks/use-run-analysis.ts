@@ -9,18 +9,20 @@ export type AnalysisChoice = { observable: string; cut?: number | null; window?:
 export type EstimateVersion = {
   id: string; version: number; isCurrent: boolean; mean: number; error: number; tauInt: number | null; tauIntError?: number | null;
   thermCut: number; window: number | null; method: string; analysisVersion: string;
-  chosenAt?: string | null; chosenBy?: { id: string; name: string } | null; createdAt?: string;
+  chosenById: string | null; chosenAt: string | null; createdAt: string;
 };
 
-/** GET /api/v1/runs/:id/analysis as JSON (the estimate recomputed with the given choices, not saved). */
+/** GET /api/v1/runs/:id/analysis (lib/explorer/run-analysis.ts) as JSON: the estimate recomputed with the choices, not saved. */
 export type RunAnalysis = {
-  runId: string; observable: string; observables?: string[];
-  series: { sweep?: number[]; index?: number[]; value: number[]; decimated?: boolean; stride?: number; nTotal?: number };
-  cut: { index: number; rule: string; sweep?: number | null };
-  acf: number[]; tauIntByWindow?: number[]; window: number; windowRule?: string;
-  blocking: { levels: { level: number; blockSize: number; nBlocks: number; error: number; errorOfError: number }[]; plateau?: { level: number } | null };
-  estimate: { mean: number; error: number; tauInt: number; tauIntError: number; n: number; nTotal?: number; window: number; method: string; warnings?: string[] };
-  current?: EstimateVersion | null; versions?: EstimateVersion[];
+  runId: string; observable: string;
+  series: { total: number; shown: number; stride: number; method: string; points: { i: number; sweep: number | null; value: number }[] };
+  cut: { index: number; rule: string };
+  acf: { lags: number; rho: number[]; tauIntByWindow: number[]; window: number; method: string; parameter: number };
+  tauInt: number; tauIntError: number;
+  blocking: { levels: { level: number; blockSize: number; nBlocks: number; error: number; errorOfError: number }[]; plateau: { level: number }; plateauFound: boolean; warnings: string[] } | null;
+  blockingProblem: string | null;
+  estimate: { mean: number; error: number; tauInt: number; tauIntError: number; n: number; nTotal: number; window: number; method: string; analysisVersion: string; warnings: string[] };
+  versions: EstimateVersion[];
 };
 
 const qs = (c: AnalysisChoice) => {
@@ -54,7 +56,7 @@ export function useSaveEstimate(runId: string) {
         const e = (body as { error?: { code?: string; message?: string } } | null)?.error;
         throw new ApiError(res.status, e?.code ?? `http_${res.status}`, e?.message ?? `saving answered ${res.status}`);
       }
-      return unwrap<EstimateVersion>(body as { data: EstimateVersion } | EstimateVersion);
+      return unwrap<{ estimate: EstimateVersion; previousVersion: number | null }>(body as { data: { estimate: EstimateVersion; previousVersion: number | null } });
     },
     onSuccess: () => {
       void client.invalidateQueries({ queryKey: ["run-analysis", runId] });
@@ -63,12 +65,14 @@ export function useSaveEstimate(runId: string) {
   });
 }
 
-/** GET /api/v1/runs/:id/spectrum: counting function with its Weyl fit and d_s(σ). */
+/** GET /api/v1/runs/:id/spectrum (lib/explorer/run-spectrum.ts): counting function with its Weyl fit and d_s(σ). */
 export type RunSpectrum = {
-  counting: { lambda: number[]; N: number[] };
-  weyl: { dimension: number; dimensionError: number; logPrefactor: number; window: [number, number]; points: number; zeroModes: number };
-  heatKernel: { sigma: number[]; spectralDimension: number[]; zeroModes?: number };
-  eigenvalues?: number;
+  eigenvalues: number; shift: number;
+  counting: { lambda: number; N: number; weyl: number | null }[];
+  weyl: { dimension: number; dimensionError: number; logPrefactor: number; window: [number, number]; points: number; zeroModes: number } | null;
+  weylProblem: string | null;
+  heatKernel: { sigma: number; K: number; logK: number; ds: number }[];
+  zeroModes: number; analysisVersion: string;
 };
 
 /** A run's spectrum, or null when the run stores none (404 with code "no_spectrum" or similar). */
