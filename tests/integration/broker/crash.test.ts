@@ -9,7 +9,7 @@ import { stopBoss } from "@/lib/queue/boss";
 import { db } from "@/models";
 import {
   BrokerProcess, freePort, isingSpec, ledgerOf, makeCatalogSamplers, makeClusterRow, makePeople, startNode, startSmtp,
-  stateCounts, submit, tempDir, waitFor,
+  removeTempDirs, stateCounts, submit, tempDir, waitFor,
 } from "./support";
 
 const t = useTestDatabase();
@@ -28,6 +28,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await broker?.kill();
   await Promise.all([node?.node.close(), smtp?.close(), stopBoss({ graceful: false })]);
+  removeTempDirs();
 });
 
 const FINAL = ["done", "failed", "cancelled"];

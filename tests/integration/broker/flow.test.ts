@@ -17,7 +17,7 @@ import { loadIdentity } from "@/lib/auth/identity";
 import { db, type Cluster, type User } from "@/models";
 import {
   BrokerProcess, clientKeyPair, freePort, isingSpec, ledgerOf, makeCatalogSamplers, makeClusterRow, makePeople, startNode, startSmtp,
-  stateCounts, submit, tempDir, waitFor,
+  removeTempDirs, stateCounts, submit, tempDir, waitFor,
 } from "./support";
 
 const t = useTestDatabase();
@@ -53,6 +53,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await broker?.stop();
   await Promise.all([good?.node.close(), bad?.node.close(), forger?.node.close(), smtp?.close(), stopBoss({ graceful: false })]);
+  removeTempDirs();
 });
 
 const ensembleState = (id: string) => async () => (await db().Ensemble.findByPk(id))!.state;

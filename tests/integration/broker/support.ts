@@ -26,9 +26,18 @@ const ROOT = path.resolve(import.meta.dirname, "..", "..", "..");
 /** One key-encryption key shared by the test (sealing) and the broker child (opening). */
 export const KEK = crypto.randomBytes(32);
 
-/** A temp dir removed by the returned cleanup. */
+const made: string[] = [];
+
+/** A temp dir, removed by removeTempDirs(). */
 export function tempDir(prefix: string): string {
-  return fs.mkdtempSync(path.join(os.tmpdir(), `ergodex-${prefix}-`));
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), `ergodex-${prefix}-`));
+  made.push(dir);
+  return dir;
+}
+
+/** Remove every temp dir this file made (call after the nodes and the broker have stopped). */
+export function removeTempDirs(): void {
+  for (const dir of made.splice(0)) fs.rmSync(dir, { recursive: true, force: true });
 }
 
 /** A free TCP port on loopback. */
