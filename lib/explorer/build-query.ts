@@ -15,7 +15,7 @@ const SORT_SQL: Record<string, string> = {
 };
 
 /** A parameterised WHERE clause and its bind values; `bind` grows as `add` is called. */
-export type BuiltQuery = { from: string; where: string; orderBy: string; bind: unknown[] };
+export type BuiltQuery = { from: string; where: string; orderBy: string; bind: unknown[]; whereBind: unknown[] };
 
 /**
  * A parameter's numeric value, or NULL when it is not a JSON number, so a string value ("wolff")
@@ -67,6 +67,8 @@ export async function buildEstimateQuery(who: Identity, q: ExplorerQuery): Promi
     if (f.min !== undefined) where.push(`${numericParam(name)} >= ${ref(f.min)}::double precision`);
     if (f.max !== undefined) where.push(`${numericParam(name)} <= ${ref(f.max)}::double precision`);
   }
+  // ORDER BY's binds come last, so a count (no ORDER BY) passes only the WHERE ones.
+  const whereBind = [...bind];
   const dir = q.sort.dir === "asc" ? "ASC" : "DESC";
   let orderBy: string;
   if (sortParam) {
@@ -80,5 +82,5 @@ export async function buildEstimateQuery(who: Identity, q: ExplorerQuery): Promi
   }
   const from = `FROM estimates es JOIN ensembles e ON e.id = es.ensemble_id JOIN samplers s ON s.id = e.sampler_id
     JOIN users u ON u.id = e.owner_id JOIN parameter_points p ON p.id = es.point_id LEFT JOIN runs r ON r.id = es.run_id`;
-  return { from, where: `WHERE ${where.join(" AND ")}`, orderBy: `ORDER BY ${orderBy}`, bind };
+  return { from, where: `WHERE ${where.join(" AND ")}`, orderBy: `ORDER BY ${orderBy}`, bind, whereBind };
 }

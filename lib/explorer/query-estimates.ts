@@ -41,7 +41,7 @@ function toRow(r: Record<string, unknown>): ExplorerRow {
 export async function queryEstimates(who: Identity, q: ExplorerQuery): Promise<ExplorerPage> {
   const b = await buildEstimateQuery(who, q);
   const { sequelize } = db();
-  const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total ${b.from} ${b.where}`, { type: QueryTypes.SELECT, bind: b.bind });
+  const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total ${b.from} ${b.where}`, { type: QueryTypes.SELECT, bind: b.whereBind });
   const rows = await sequelize.query<Record<string, unknown>>(
     `${SELECT} ${b.from} ${b.where} ${b.orderBy} LIMIT ${q.pageSize} OFFSET ${(q.page - 1) * q.pageSize}`,
     { type: QueryTypes.SELECT, bind: b.bind },

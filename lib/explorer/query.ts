@@ -129,7 +129,8 @@ export function parseExplorerQuery(input: URLSearchParams | Record<string, unkno
     ...q,
     ensembleIds: q.ensembleIds?.map((s) => s.toLowerCase()),
     ownerIds: q.ownerIds?.map((s) => s.toLowerCase()),
-    params: q.params.map((f) => ({ ...f })),
+    // Canonical order (by name) so equal views compare equal and serialise to the same URL.
+    params: q.params.map((f) => ({ ...f })).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0)),
     sort: { ...q.sort },
   };
 }
