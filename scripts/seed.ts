@@ -2,7 +2,7 @@
 // pins the cluster's host key and authorises the app's own key pair on it.
 import fs from "node:fs";
 import path from "node:path";
-import ssh2 from "ssh2";
+import { generateSshKeyPair } from "../lib/ssh/generate-key-pair";
 import { env } from "../lib/env";
 import { seedDemo } from "../lib/seed/seed-demo";
 import { db } from "../models";
@@ -13,7 +13,7 @@ const stateDir = env.cluster.stateDir;
 const hostKey = loadOrCreateHostKey(stateDir);
 
 function clientPrivateKey(): string {
-  const pair = ssh2.utils.generateKeyPairSync("ed25519", { comment: "ergodex-broker" });
+  const pair = generateSshKeyPair("ergodex-broker");
   const file = authorizedKeysPath(stateDir);
   fs.mkdirSync(path.dirname(file), { recursive: true });
   fs.appendFileSync(file, `${pair.public.trim()}\n`, { mode: 0o600 });

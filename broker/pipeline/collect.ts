@@ -47,7 +47,9 @@ async function collectLocked(runId: string, log: Logger): Promise<CollectOutcome
       const result = await importBundle({ runId, dir, source: "cluster" });
       log.info({ runId, status: result.status, rows: result.rows }, "bundle imported");
     } catch (err) {
-      if (!(err instanceof AppError && err.code === "invalid")) throw err;
+      // "invalid": the bundle is bad; "conflict": the run already has another accepted bundle, or this bundle
+      // belongs to another run. Neither gets better by retrying, so the run fails with the importer's reason.
+      if (!(err instanceof AppError && (err.code === "invalid" || err.code === "conflict"))) throw err;
       await failRun(runId, { reason: "import_rejected", detail: err.message }, { cause: "collect.import_rejected" });
       return "rejected";
     }

@@ -3,6 +3,7 @@ import path from "node:path";
 import { timingSafeEqual } from "node:crypto";
 import ssh2 from "ssh2";
 import type { ParsedKey } from "ssh2";
+import { generateSshKeyPair } from "../../lib/ssh/generate-key-pair";
 
 const { utils } = ssh2;
 
@@ -18,7 +19,7 @@ export function loadOrCreateHostKey(stateDir: string): HostKey {
   const keyFile = path.join(stateDir, "host_ed25519_key");
   const pubFile = `${keyFile}.pub`;
   if (!fs.existsSync(keyFile)) {
-    const pair = utils.generateKeyPairSync("ed25519", { comment: "ergodex-cluster-fake" });
+    const pair = generateSshKeyPair("ergodex-cluster-fake");
     fs.mkdirSync(stateDir, { recursive: true });
     // "wx": two processes starting on the same state dir must not overwrite each other's key.
     fs.writeFileSync(keyFile, pair.private, { mode: 0o600, flag: "wx" });

@@ -57,6 +57,8 @@ export async function submitEnsemble(audit: AuditSource, who: Identity, spec: En
       allocationId: allocation.id, clusterId: cluster.id, sampler: spec.sampler,
     }, transaction);
     await enqueue("dispatch-runs", { ensembleId: ensemble.id }, { transaction });
+    // a reservation counts as use: the 80 % / 100 % alerts may be due now
+    await enqueue("check-allocation", { allocationId: allocation.id }, { transaction });
     return { ensembleId: ensemble.id, runIds: created.map((r) => r.id), points: points.length, reservedCoreHours: needed };
   });
 }

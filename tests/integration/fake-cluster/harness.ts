@@ -2,6 +2,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import ssh2 from "ssh2";
+import { generateSshKeyPair } from "@/lib/ssh/generate-key-pair";
 import { startFakeCluster, type FakeCluster } from "@/cluster-fake/server/server";
 import type { FakeClusterOptions } from "@/cluster-fake/server/config";
 import { authorizedKeysPath } from "@/cluster-fake/server/keys";
@@ -14,7 +15,7 @@ export const FIXTURE_COMMAND = [process.execPath, FIXTURE_SAMPLER, "{sampler}", 
 /** A fresh state dir with one authorized client key. */
 export function makeStateDir(): { stateDir: string; clientKey: string; cleanup: () => void } {
   const stateDir = fs.mkdtempSync(path.join(os.tmpdir(), "ergodex-fc-"));
-  const pair = ssh2.utils.generateKeyPairSync("ed25519");
+  const pair = generateSshKeyPair("ergodex-test");
   fs.writeFileSync(authorizedKeysPath(stateDir), `# test client\n${pair.public}\n`);
   return { stateDir, clientKey: pair.private, cleanup: () => fs.rmSync(stateDir, { recursive: true, force: true }) };
 }
