@@ -8,8 +8,9 @@ import { cancelRunsJob } from "./jobs/cancel-runs";
 import { sendMailJob } from "./jobs/send-mail";
 import { failureDigestJob } from "./jobs/failure-digest";
 import { checkAllocationJob } from "./jobs/check-allocation";
+import { verifyManuscriptJob } from "./jobs/verify-manuscript";
 
 /** The registry: one entry per queue the broker works. */
 export const JOBS: readonly JobDefinition<never>[] = [
-  dispatchRunsJob, pollClustersJob, collectRunJob, cancelRunsJob, sendMailJob, failureDigestJob, checkAllocationJob,
+  dispatchRunsJob, pollClustersJob, collectRunJob, cancelRunsJob, sendMailJob, failureDigestJob, checkAllocationJob, verifyManuscriptJob,
 ] as unknown as JobDefinition<never>[];
