@@ -5,11 +5,11 @@ import crypto from "node:crypto";
 
 const e = process.env;
 
-function int(name: string, fallback: number): number {
+function int(name: string, fallback: number, max = 65535): number {
   const raw = e[name];
   if (raw === undefined || raw === "") return fallback;
   const n = Number(raw);
-  if (!Number.isInteger(n) || n <= 0 || n > 65535) throw new Error(`${name} must be a port/positive integer, got "${raw}"`);
+  if (!Number.isInteger(n) || n <= 0 || n > max) throw new Error(`${name} must be a port/positive integer, got "${raw}"`);
   return n;
 }
 
@@ -70,6 +70,19 @@ export const env = {
   /** The template database integration tests clone. */
   testTemplateDb: e.ERGODEX_PG_TEMPLATE_DB ?? "ergodex_template",
   archiveDir: path.join(dataDir, "archive"),
+  /** Limits of result-bundle uploads (docs/uploads.md); the Archive page states them. */
+  uploads: {
+    /** Largest upload body, in bytes (default 256 MiB). */
+    maxBytes: int("ERGODEX_UPLOAD_MAX_BYTES", 268_435_456, 2 ** 40),
+    /** Most files one upload may hold, counted after unpacking. */
+    maxFiles: int("ERGODEX_UPLOAD_MAX_FILES", 1_000),
+    /** Most bytes an upload may unpack to (default 1 GiB). */
+    maxUnpackedBytes: int("ERGODEX_UPLOAD_MAX_UNPACKED", 1_073_741_824, 2 ** 42),
+    /** Largest uncompressed/compressed ratio of an archive (beyond 1 MiB unpacked): the zip-bomb guard. */
+    maxRatio: int("ERGODEX_UPLOAD_MAX_RATIO", 200),
+    /** Where uploads are received and unpacked; each upload's folder is removed when it is done. */
+    dir: path.join(dataDir, "uploads"),
+  },
   get appUrl(): string {
     return e.NEXTAUTH_URL ?? `http://127.0.0.1:${this.web.port}`;
   },
