@@ -63,6 +63,9 @@ export const ROUTES: RouteRow[] = [
   // fresh group-A ensemble owned by its researcher (owner, leading PI, admin may); submit of an invalid spec passes the guard, then 422
   { file: "app/api/v1/schemas/ensemble-spec/route.ts", method: "GET", path: () => "/api/v1/schemas/ensemble-spec", expect: { anonymous: 200, viewer: 200, researcher: 200, pi: 200, coordinator: 200, admin: 200 } },
   { file: "app/api/v1/ensembles/route.ts", method: "GET", path: () => "/api/v1/ensembles?pageSize=5&sort=name&order=asc", expect: ALL(200) },
+  { file: "app/api/v1/imports/route.ts", method: "GET", path: () => "/api/v1/imports?pageSize=5", expect: ALL(200) },
+  // A JSON body is not an upload: the roles that may upload get 400 (content type), the others 403 before reading it.
+  { file: "app/api/v1/imports/route.ts", method: "POST", path: () => "/api/v1/imports", body: () => ({ not: "an upload" }), expect: ONLY(["researcher", "pi", "admin"], 400) },
   { file: "app/api/v1/ensembles/route.ts", method: "POST", path: () => "/api/v1/ensembles", body: () => ({ ...matrixSpec(), replicas: 0 }), expect: ONLY(["researcher", "pi", "admin"], 422) },
   { file: "app/api/v1/ensembles/preview/route.ts", method: "POST", path: () => "/api/v1/ensembles/preview", body: () => matrixSpec(), expect: ONLY(["researcher", "pi", "admin"], 200) },
   { file: "app/api/v1/ensembles/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, false)).id}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
