@@ -69,7 +69,6 @@ export async function unpackZip(file: string, label: string, target: string, bud
     }
     budget.addFile(where);
     declaredTotal += entry.uncompressedSize;
-    budget.declare(entry.uncompressedSize, where);
     const ratio = entry.uncompressedSize / Math.max(1, entry.compressedSize);
     if (entry.uncompressedSize > RATIO_FLOOR_BYTES && ratio > budget.limits.maxRatio) {
       throw new AppError("invalid", `${where}: compresses ${Math.round(ratio)}:1 (${entry.compressedSize} → ${entry.uncompressedSize} bytes), beyond the ${budget.limits.maxRatio}:1 allowed — refused as a possible zip bomb`, { file: label, entry: name });
@@ -77,6 +76,7 @@ export async function unpackZip(file: string, label: string, target: string, bud
     if (declaredTotal > RATIO_FLOOR_BYTES && declaredTotal / Math.max(1, compressedTotal) > budget.limits.maxRatio) {
       throw new AppError("invalid", `${label}: unpacks to ${declaredTotal} bytes from ${compressedTotal}, beyond the ${budget.limits.maxRatio}:1 allowed — refused as a possible zip bomb`, { file: label });
     }
+    budget.declare(entry.uncompressedSize, where);
     const out = path.join(target, rel);
     if (fs.existsSync(out)) throw new AppError("invalid", `${where}: appears twice in the archive`, { file: label, entry: name });
     fs.mkdirSync(path.dirname(out), { recursive: true });
