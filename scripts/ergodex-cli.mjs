@@ -18,6 +18,8 @@ usage:
       queue the ensemble's failed runs again (a new reservation is made)
   ergodex fetch-estimates <ensembleId> [-o file.csv] [--runs] [--json]
       download the current estimates per point (--runs: per run) as CSV (--json: JSON)
+  ergodex deposit <bundle-folder|bundles.zip|bundles.tar.gz> [--group=<slug>] [--json]
+      upload result bundles of runs done elsewhere; prints accepted / already imported / refused (and why) per bundle
 
 environment:
   ERGODEX_TOKEN   API token (required), e.g. edx_…
@@ -64,13 +66,14 @@ function describeError(status, body, text) {
   return lines.join("\n");
 }
 
-async function call(method, route, { body, contentType, accept } = {}) {
+async function call(method, route, { body, contentType, accept, headers: extra } = {}) {
   const { token, url } = config();
-  const headers = { authorization: `Bearer ${token}`, accept: accept ?? "application/json" };
-  if (body !== undefined) headers["content-type"] = contentType ?? "application/json";
+  const headers = { authorization: `Bearer ${token}`, accept: accept ?? "application/json", ...extra };
+  if (body !== undefined && contentType !== null) headers["content-type"] = contentType ?? "application/json";
   let res;
   try {
-    res = await fetch(url + route, { method, headers, body });
+    // A file stream as body needs duplex "half" (Node's fetch streams it instead of buffering).
+    res = await fetch(url + route, { method, headers, body, duplex: "half" });
   } catch (err) {
     throw new CliError(`cannot reach ${url} (${err.cause?.code ?? err.message}); is Ergodex running? (npm start)`, 3);
   }
@@ -161,7 +164,49 @@ async function fetchEstimates(args, flags, out) {
   process.stderr.write(`wrote ${rows} estimates to ${out}\n`);
 }
 
-const COMMANDS = { send, look, halt, retry, "fetch-estimates": fetchEstimates };
+/** Every file under `dir` as paths relative to it. */
+function walk(dir, rel = "") {
+  const out = [];
+  for (const e of fs.readdirSync(path.join(dir, rel), { withFileTypes: true })) {
+    const r = rel ? `${rel}/${e.name}` : e.name;
+    if (e.isDirectory()) out.push(...walk(dir, r));
+    else if (e.isFile()) out.push(r);
+    else throw new CliError(`${path.join(dir, r)} is not a plain file (links are not uploaded)`, 2);
+  }
+  return out;
+}
+
+async function deposit(args, flags) {
+  const target = args[0];
+  if (!target) throw new CliError("missing a bundle folder, .zip or .tar.gz; see ergodex --help", 2);
+  if (!fs.existsSync(target)) throw new CliError(`${target} does not exist`, 2);
+  const group = [...flags].find((f) => f.startsWith("group="))?.slice(6);
+  const route = `/api/v1/imports${group ? `?group=${encodeURIComponent(group)}` : ""}`;
+  let answer;
+  if (fs.statSync(target).isDirectory()) {
+    const form = new FormData();
+    const base = path.basename(path.resolve(target));
+    for (const rel of walk(target)) form.append("file", await fs.openAsBlob(path.join(target, rel)), `${base}/${rel}`);
+    answer = await call("POST", route, { body: form, contentType: null });
+  } else {
+    const name = path.basename(target);
+    const type = /\.zip$/i.test(name) ? "application/zip" : /\.(tar\.gz|tgz)$/i.test(name) ? "application/gzip" : "application/octet-stream";
+    answer = await call("POST", route, { body: fs.createReadStream(target), contentType: type, headers: { "x-file-name": name, "content-length": String(fs.statSync(target).size) } });
+  }
+  const data = answer.json.data;
+  if (flags.has("json")) print(JSON.stringify(data, null, 2));
+  else {
+    for (const b of data.bundles) {
+      if (b.status === "accepted") print(`accepted          ${b.bundle}  run ${b.runId} (${b.rows} rows: ${b.observables.join(", ")})`);
+      else if (b.status === "already-imported") print(`already imported  ${b.bundle}  run ${b.runId ?? "(deleted)"} (import ${b.importId})`);
+      else print(`refused           ${b.bundle}\n    ${b.reason}`);
+    }
+    print(`${data.accepted} accepted, ${data.alreadyImported} already imported, ${data.refused} refused`);
+  }
+  if (data.refused > 0) process.exitCode = 1;
+}
+
+const COMMANDS = { send, look, halt, retry, "fetch-estimates": fetchEstimates, deposit };
 
 async function main() {
   const { command, args, flags, out } = parseArgs(process.argv.slice(2));
