@@ -60,8 +60,8 @@ export async function buildEstimateQuery(who: Identity, q: ExplorerQuery): Promi
   for (const f of q.params) {
     const name = ref(f.name);
     if (f.eq !== undefined) {
-      // jsonb equality: 16 matches 16 and 16.0, "wolff" matches only the string.
-      where.push(`es.params -> ${name} = ${ref(JSON.stringify(f.eq))}::jsonb`);
+      // jsonb containment (served by the GIN index on params): 16 matches 16 and 16.0, "wolff" only the string.
+      where.push(`es.params @> jsonb_build_object(${name}::text, ${ref(JSON.stringify(f.eq))}::jsonb)`);
       continue;
     }
     if (f.min !== undefined) where.push(`${numericParam(name)} >= ${ref(f.min)}::double precision`);

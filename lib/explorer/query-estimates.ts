@@ -16,7 +16,10 @@ export type ExplorerRow = {
 };
 
 /** A page of rows and the total count. */
-export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number };
+export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number; totalCapped: boolean };
+
+/** Counting stops here: an exact count of a huge result costs a full scan (bench/explorer-scale.ts), a pager needs no more. */
+export const COUNT_CAP = 10_000;
 
 const SELECT = `SELECT es.id, es.scope, es.observable, es.mean, es.error, es.tau_int, es.tau_int_error, es.n, es.therm_cut, es."window",
   es.method, es.analysis_version, es.version, es.chi2dof, es.flagged, es.params, es.created_at, es.ensemble_id, e.name AS ensemble_name,
@@ -41,12 +44,13 @@ function toRow(r: Record<string, unknown>): ExplorerRow {
 export async function queryEstimates(who: Identity, q: ExplorerQuery): Promise<ExplorerPage> {
   const b = await buildEstimateQuery(who, q);
   const { sequelize } = db();
-  const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total ${b.from} ${b.where}`, { type: QueryTypes.SELECT, bind: b.whereBind });
+  const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM (SELECT 1 ${b.from} ${b.where} LIMIT ${COUNT_CAP + 1}) c`,
+    { type: QueryTypes.SELECT, bind: b.whereBind });
   const rows = await sequelize.query<Record<string, unknown>>(
     `${SELECT} ${b.from} ${b.where} ${b.orderBy} LIMIT ${q.pageSize} OFFSET ${(q.page - 1) * q.pageSize}`,
     { type: QueryTypes.SELECT, bind: b.bind },
   );
-  return { rows: rows.map(toRow), total: Number(total), page: q.page, pageSize: q.pageSize };
+  return { rows: rows.map(toRow), total: Math.min(Number(total), COUNT_CAP), totalCapped: Number(total) > COUNT_CAP, page: q.page, pageSize: q.pageSize };
 }
 
 /** Every matching row (up to `limit`) in the table's order: what exports and plots read. */
