@@ -73,6 +73,16 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/runs/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/runs/${(await db().Run.findOne({ where: { ensembleId: (await matrixEnsemble(fx, false)).id } }))!.id}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
   { file: "app/api/v1/ensembles/[id]/cancel/route.ts", method: "POST", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, false)).id}/cancel`, expect: { anonymous: 401, viewer: 403, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 403, admin: 200 } },
   { file: "app/api/v1/ensembles/[id]/resubmit/route.ts", method: "POST", path: async (fx) => `/api/v1/ensembles/${(await matrixEnsemble(fx, true)).id}/resubmit`, expect: { anonymous: 401, viewer: 403, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 403, admin: 200 } },
+  // explorer (explorer-API engineer): the table, plots and views read within group scope; run analysis of a group-A run without an
+  // observable passes the guard, then 422; a run without a spectrum is 404 for everyone; saving a malformed re-analysis passes the act guard, then 422
+  { file: "app/api/v1/estimates/route.ts", method: "GET", path: () => "/api/v1/estimates?observable=e&pageSize=5&format=csv", expect: ALL(200) },
+  { file: "app/api/v1/plots/estimates/route.ts", method: "GET", path: () => "/api/v1/plots/estimates?observable=e&x=T&groupBy=ensemble", expect: ALL(200) },
+  { file: "app/api/v1/runs/[id]/analysis/route.ts", method: "GET", path: async (fx) => `/api/v1/runs/${await matrixRunId(fx)}/analysis`, expect: { anonymous: 401, viewer: { member: 422, outsider: 404 }, researcher: { member: 422, outsider: 404 }, pi: { member: 422, outsider: 404 }, coordinator: 422, admin: 422 } },
+  { file: "app/api/v1/runs/[id]/spectrum/route.ts", method: "GET", path: async (fx) => `/api/v1/runs/${await matrixRunId(fx)}/spectrum`, expect: { anonymous: 401, viewer: 404, researcher: 404, pi: 404, coordinator: 404, admin: 404 } },
+  { file: "app/api/v1/runs/[id]/estimates/route.ts", method: "POST", path: async (fx) => `/api/v1/runs/${await matrixRunId(fx)}/estimates`, body: () => ({ observable: "e", cut: "soon" }), expect: { anonymous: 401, viewer: 403, researcher: { member: 422, outsider: 404 }, pi: { member: 422, outsider: 404 }, coordinator: 403, admin: 422 } },
+  { file: "app/api/v1/views/route.ts", method: "GET", path: () => "/api/v1/views", expect: ALL(200) },
+  { file: "app/api/v1/views/route.ts", method: "POST", path: () => "/api/v1/views", body: () => ({ name: `matrix view ${uniq()}`, query: { observable: "e" } }), expect: ALL(201) },
+  { file: "app/api/v1/views/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/views/${await matrixViewId(fx)}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
 ];
 
 // A tiny valid ising2d spec for the ensemble actions (placement problems are listed by preview, not thrown).
@@ -89,6 +99,14 @@ async function matrixEnsemble(fx: Fx, failed: boolean) {
   await ensemble.update({ spec: { ...matrixSpec(), ...ensemble.spec } });
   if (failed) await transitionRun(runs[0].id, "failed", { cause: "test.fail", patch: { failureReason: "nonzero_exit" } });
   return ensemble;
+}
+
+const matrixRunId = async (fx: Fx) => (await db().Run.findOne({ where: { ensembleId: (await matrixEnsemble(fx, false)).id } }))!.id;
+/** A saved view shared with group A, owned by its member researcher. */
+async function matrixViewId(fx: Fx) {
+  const owner = fx.people.find((p) => p.role === "researcher" && p.where === "member")!;
+  const v = await db().SavedView.create({ name: `matrix ${uniq()}`, query: { scope: "point" }, queryString: "", ownerId: owner.id, groupId: fx.groupA.id });
+  return v.id;
 }
 
 type ActionRow = { file: string; def: ActionDef<any, any>; input: (fx: Fx, p: Person) => unknown | Promise<unknown>; expect: Expect };

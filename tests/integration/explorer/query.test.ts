@@ -20,7 +20,7 @@ const T = (e: Estimate) => e.params.T as number | string;
 describe("filters return exactly the right rows", () => {
   it("a parameter range, inclusive at both ends, skipping the point whose T is not a number", async () => {
     const page = await queryEstimates(s.people.owner, q({ observable: "e", "p.T": "2.2..2.4" }));
-    const want = expected((e) => e.scope === "point" && e.observable === "e" && typeof T(e) === "number" && T(e) >= 2.2 && T(e) <= 2.4 && e.ensembleId !== s.ensembles.other.id);
+    const want = expected((e) => e.scope === "point" && e.observable === "e" && typeof T(e) === "number" && (T(e) as number) >= 2.2 && (T(e) as number) <= 2.4 && e.ensembleId !== s.ensembles.other.id);
     expect(want.length).toBe(3); // scan 2.2, 2.4 and big 2.3
     expect(new Set(ids(page.rows))).toEqual(new Set(want.map((e) => e.id)));
     expect(page.total).toBe(3);
