@@ -18,8 +18,13 @@ import { env } from "@/lib/env";
 type Entry = { key: string; adapter: GuardedAdapter };
 const cache = new Map<string, Entry>();
 
-/** Fields whose change means a new connection. */
-const connectionKey = (c: Cluster) => JSON.stringify([c.kind, c.host, c.port, c.username, c.hostKeyFingerprint, c.privateKeyEncrypted]);
+/** Fields whose change means a new adapter (the batch adapter takes its settings at construction). */
+const connectionKey = (c: Cluster) => JSON.stringify([c.kind, c.host, c.port, c.username, c.hostKeyFingerprint, c.privateKeyEncrypted, c.workDir,
+  ...ADAPTER_SETTINGS.map((k) => c.settings?.[k] ?? null)]);
+/** Settings the adapter is built with; the others (maxWallSeconds…) are read per dispatch. */
+const ADAPTER_SETTINGS = ["partition", "account", "prelude", "samplerCommand", "pollSeconds", "submitSeconds", "wallSignalSeconds"] as const;
+
+const positive = (v: unknown): boolean => typeof v === "number" && Number.isFinite(v) && v > 0;
 
 /**
  * Wraps an adapter so that a host-key mismatch on any call marks the cluster unhealthy and
@@ -49,7 +54,8 @@ export class GuardedAdapter implements ClusterAdapter {
   close: ClusterAdapter["close"] = () => this.inner.close();
 }
 
-function build(cluster: Cluster): GuardedAdapter {
+/** A new, uncached adapter for `cluster` (a one-off connection test closes it after use). */
+export function buildAdapter(cluster: Cluster): GuardedAdapter {
   const ssh = {
     host: cluster.host, port: cluster.port, username: cluster.username,
     privateKey: openSecret(cluster.privateKeyEncrypted),
@@ -69,6 +75,8 @@ function build(cluster: Cluster): GuardedAdapter {
         samplerCommand: settings.samplerCommand ?? "node_modules/.bin/tsx cluster-fake/samplers/cli.ts",
         partition: settings.partition ?? null, account: settings.account ?? null, prelude: settings.prelude ?? null,
         ...(settings.pollSeconds ? { queryIntervalMs: settings.pollSeconds * 1000 } : {}),
+        ...(positive(settings.submitSeconds) ? { submitIntervalMs: Number(settings.submitSeconds) * 1000 } : {}),
+        ...(positive(settings.wallSignalSeconds) ? { wallSignalSeconds: Number(settings.wallSignalSeconds) } : {}),
       }));
     default:
       throw new Error(`cluster ${cluster.name}: no adapter for kind "${String(cluster.kind)}"`);
@@ -81,7 +89,7 @@ export function adapterFor(cluster: Cluster): GuardedAdapter {
   const known = cache.get(cluster.id);
   if (known && known.key === key) return known.adapter;
   if (known) void known.adapter.close().catch(() => {});
-  const adapter = build(cluster);
+  const adapter = buildAdapter(cluster);
   cache.set(cluster.id, { key, adapter });
   return adapter;
 }
