@@ -8,13 +8,16 @@ import { ColumnChooser, useHiddenColumns } from "./column-chooser";
 
 type Meta = { numeric?: boolean; param?: boolean } | undefined;
 
+// accessor-key columns carry their key, not an id, until the table resolves them
+const colId = (c: { id?: string }) => c.id ?? (c as { accessorKey?: string }).accessorKey ?? "";
+
 /** The estimates table: sorting and pages are the server's, read from and written to the URL. */
 export function ExplorerTable({ data, params, get, set, isPending, onClear, toolbar }: {
   data: ExplorerPage | undefined; params: string[]; get: (k: string) => string; set: (c: Record<string, string | number | null>) => void;
   isPending: boolean; onClear: () => void; toolbar?: React.ReactNode;
 }) {
   const columns = useMemo(() => [...BASE_COLUMNS, ...params.map(paramColumn)], [params]);
-  const { hidden, toggle } = useHiddenColumns(BASE_COLUMNS.map((c) => c.id!).filter((id) => !DEFAULT_VISIBLE.includes(id)));
+  const { hidden, toggle } = useHiddenColumns(BASE_COLUMNS.map(colId).filter((id) => !DEFAULT_VISIBLE.includes(id)));
   const columnVisibility: VisibilityState = useMemo(() => Object.fromEntries(hidden.map((h) => [h, false])), [hidden]);
   const sorting: SortingState = useMemo(() => [{ id: get("sort") || "createdAt", desc: (get("dir") || (get("sort") ? "asc" : "desc")) === "desc" }], [get]);
   const table = useReactTable({
@@ -31,7 +34,7 @@ export function ExplorerTable({ data, params, get, set, isPending, onClear, tool
     <div>
       <div className="flex items-center justify-end gap-2 mb-2">
         {toolbar}
-        <ColumnChooser columns={columns.map((c) => ({ id: c.id!, label: typeof c.header === "string" ? c.header : c.id! }))} hidden={hidden} onToggle={toggle} />
+        <ColumnChooser columns={columns.map((c) => ({ id: colId(c), label: typeof c.header === "string" ? c.header : colId(c) }))} hidden={hidden} onToggle={toggle} />
       </div>
       <div className="overflow-x-auto">
         <table className="data" data-testid="explorer-table" aria-busy={isPending}>
