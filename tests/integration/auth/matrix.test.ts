@@ -11,10 +11,12 @@ import { makeMatrixPeople, type Person } from "./people-fixture";
 import * as accountActions from "@/lib/actions/account";
 import * as peopleActions from "@/lib/actions/people";
 import * as ensembleActions from "@/lib/actions/ensembles";
+import { CLUSTER_ACTIONS, CLUSTER_ROUTES } from "../batch-pipeline/matrix-rows";
 import { makeAllocation, makeEnsemble } from "../../support/db";
 import { transitionRun } from "@/lib/runs/transition-run";
 import { db } from "@/models";
 import type { Role } from "@/lib/auth/roles";
+import { MANUSCRIPT_ACTIONS, MANUSCRIPT_ROUTES } from "../provenance/matrix-rows";
 
 type Expect = Partial<Record<Role | "anonymous", number | { member: number; outsider: number }>>;
 type Fx = Awaited<ReturnType<typeof makeMatrixPeople>>;
@@ -42,6 +44,8 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/[...path]/route.ts", method: "PATCH", path: () => "/api/v1/no/such", body: () => ({}), expect: { anonymous: 404, admin: 404 } },
   { file: "app/api/v1/[...path]/route.ts", method: "DELETE", path: () => "/api/v1/no/such", expect: { anonymous: 404, admin: 404 } },
   { file: "app/api/v1/me/route.ts", method: "GET", path: () => "/api/v1/me", expect: ALL(200) },
+  // clusters (coordinators, admins): rows in tests/integration/batch-pipeline/matrix-rows.ts
+  ...CLUSTER_ROUTES,
   { file: "app/api/v1/groups/route.ts", method: "GET", path: () => "/api/v1/groups", expect: ALL(200) },
   { file: "app/api/v1/allocations/route.ts", method: "GET", path: () => "/api/v1/allocations", expect: ALL(200) },
   { file: "app/api/v1/overview/route.ts", method: "GET", path: () => "/api/v1/overview", expect: ALL(200) },
@@ -83,6 +87,8 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/views/route.ts", method: "GET", path: () => "/api/v1/views", expect: ALL(200) },
   { file: "app/api/v1/views/route.ts", method: "POST", path: () => "/api/v1/views", body: () => ({ name: `matrix view ${uniq()}`, query: { observable: "e" } }), expect: ALL(201) },
   { file: "app/api/v1/views/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/views/${await matrixViewId(fx)}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
+  // manuscripts, provenance, audit (provenance engineer): rows in tests/integration/provenance/matrix-rows.ts
+  ...MANUSCRIPT_ROUTES,
 ];
 
 // A tiny valid ising2d spec for the ensemble actions (placement problems are listed by preview, not thrown).
@@ -117,12 +123,14 @@ const ACTIONS: ActionRow[] = [
   { file: "app/(app)/people/actions/create-person.ts", def: peopleActions.createPersonAction, input: () => ({ email: `act.${uniq()}@matrix.example`, name: "Act", role: "viewer", password: "long-enough-pass" }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/update-person.ts", def: peopleActions.updatePersonAction, input: async () => ({ id: await throwawayUser(), change: { name: "Changed" } }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/set-membership.ts", def: peopleActions.setMembershipAction, input: async (fx) => ({ userId: await throwawayUser(), groupId: fx.groupA.id, member: true }), expect: ONLY(["admin"], 200) },
+  ...CLUSTER_ACTIONS,
   // ensembles: preview needs a submitting role; submit of an invalid spec passes the guard and is refused by parseSpec (422)
   { file: "app/(app)/ensembles/actions/preview-ensemble.ts", def: ensembleActions.previewEnsembleAction, input: () => ({ spec: matrixSpec() }), expect: ONLY(["researcher", "pi", "admin"], 200) },
   { file: "app/(app)/ensembles/actions/submit-ensemble.ts", def: ensembleActions.submitEnsembleAction, input: () => ({ spec: { ...matrixSpec(), replicas: 0 } }), expect: ONLY(["researcher", "pi", "admin"], 422) },
   // cancel / resubmit act on a fresh ensemble of group A owned by its researcher: owner, leading PI and admin may; outsiders get 404
   { file: "app/(app)/ensembles/actions/cancel-ensemble.ts", def: ensembleActions.cancelEnsembleAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, false)).id }), expect: ACT_ON_A },
   { file: "app/(app)/ensembles/actions/resubmit-failed.ts", def: ensembleActions.resubmitFailedAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, true)).id }), expect: ACT_ON_A },
+  ...MANUSCRIPT_ACTIONS,
 ];
 
 const want = (e: Expect, p: Person | null): number | undefined => {
