@@ -12,7 +12,6 @@ import * as accountActions from "@/lib/actions/account";
 import * as peopleActions from "@/lib/actions/people";
 import * as ensembleActions from "@/lib/actions/ensembles";
 import { CLUSTER_ACTIONS, CLUSTER_ROUTES } from "../batch-pipeline/matrix-rows";
-import { CLUSTER_ACTIONS, CLUSTER_ROUTES } from "../batch-pipeline/matrix-rows";
 import { makeAllocation, makeEnsemble } from "../../support/db";
 import { transitionRun } from "@/lib/runs/transition-run";
 import { db } from "@/models";
@@ -45,8 +44,6 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/[...path]/route.ts", method: "PATCH", path: () => "/api/v1/no/such", body: () => ({}), expect: { anonymous: 404, admin: 404 } },
   { file: "app/api/v1/[...path]/route.ts", method: "DELETE", path: () => "/api/v1/no/such", expect: { anonymous: 404, admin: 404 } },
   { file: "app/api/v1/me/route.ts", method: "GET", path: () => "/api/v1/me", expect: ALL(200) },
-  // clusters (coordinators, admins): rows in tests/integration/batch-pipeline/matrix-rows.ts
-  ...CLUSTER_ROUTES,
   // clusters (coordinators, admins): rows in tests/integration/batch-pipeline/matrix-rows.ts
   ...CLUSTER_ROUTES,
   { file: "app/api/v1/groups/route.ts", method: "GET", path: () => "/api/v1/groups", expect: ALL(200) },
@@ -126,7 +123,6 @@ const ACTIONS: ActionRow[] = [
   { file: "app/(app)/people/actions/create-person.ts", def: peopleActions.createPersonAction, input: () => ({ email: `act.${uniq()}@matrix.example`, name: "Act", role: "viewer", password: "long-enough-pass" }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/update-person.ts", def: peopleActions.updatePersonAction, input: async () => ({ id: await throwawayUser(), change: { name: "Changed" } }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/set-membership.ts", def: peopleActions.setMembershipAction, input: async (fx) => ({ userId: await throwawayUser(), groupId: fx.groupA.id, member: true }), expect: ONLY(["admin"], 200) },
-  ...CLUSTER_ACTIONS,
   ...CLUSTER_ACTIONS,
   // ensembles: preview needs a submitting role; submit of an invalid spec passes the guard and is refused by parseSpec (422)
   { file: "app/(app)/ensembles/actions/preview-ensemble.ts", def: ensembleActions.previewEnsembleAction, input: () => ({ spec: matrixSpec() }), expect: ONLY(["researcher", "pi", "admin"], 200) },
