@@ -1,8 +1,37 @@
-import { AreaPending } from "@/components/ui/area-pending";
+import Link from "next/link";
+import { pageIdentity } from "@/lib/auth/page-identity";
+import { listManuscripts } from "@/lib/manuscripts/list-manuscripts";
+import { db } from "@/models";
+import { PageHeader } from "@/components/ui/page-header";
+import { CreateManuscriptForm } from "@/components/manuscripts/create-manuscript-form";
 
 export const metadata = { title: "Manuscripts" };
+export const dynamic = "force-dynamic";
 
-export default function ManuscriptsPage() {
-  return <AreaPending title="Manuscripts" purpose="Freeze the data behind a paper's figures and audit where every number came from."
-    next="PIs will group saved explorer views into a manuscript's exhibits, freeze them with hashes and verify them later." />;
+export default async function ManuscriptsPage() {
+  const who = await pageIdentity();
+  const rows = await listManuscripts(who);
+  const leads = who.role === "admin" ? await db().Group.findAll({ order: [["name", "ASC"]] }) : await db().Group.findAll({ where: { id: who.role === "pi" ? who.leadGroupIds : [] }, order: [["name", "ASC"]] });
+  return (
+    <>
+      <PageHeader title="Manuscripts" purpose="Freeze the data behind a paper's figures and tables, verify it later, and hand collaborators a bundle they can check." />
+      {leads.length ? <CreateManuscriptForm groups={leads.map((g) => ({ id: g.id, name: g.name }))} /> : null}
+      {rows.length === 0 ? (
+        <p className="text-sm text-ink-soft">No manuscripts yet. A PI creates one above, adds exhibits (a saved explorer view behind each figure or table) and freezes it when the paper is submitted.</p>
+      ) : (
+        <table className="w-full text-sm tabular-nums">
+          <thead className="text-left text-ink-soft"><tr><th className="py-1.5">Title</th><th>Group</th><th>Journal</th><th>Exhibits</th><th>State</th></tr></thead>
+          <tbody>
+            {rows.map((r) => (
+              <tr key={r.id} className="border-t border-line">
+                <td className="py-1.5"><Link className="text-accent hover:underline" href={`/manuscripts/${r.id}`}>{r.title}</Link></td>
+                <td>{r.groupName}</td><td>{r.journal ?? "—"}</td><td>{r.exhibits}</td>
+                <td>{r.state === "frozen" ? "❄ frozen" : "✎ draft"}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
+    </>
+  );
 }
