@@ -15,8 +15,13 @@ import type { BatchConnection } from "@/tests/integration/batch-cluster/harness"
 const ROOT = path.resolve(import.meta.dirname, "../../..");
 const SCRIPTS = path.join(ROOT, "scripts/batch-cluster");
 
-/** This suite's own cluster: state dir, ports, scheduler cluster name and node name. */
+/**
+ * This suite's own cluster: state dir, ports, scheduler cluster name, node name and cluster user.
+ * Its own user matters: start.sh installs its state dir's client key as that user's whole
+ * authorized_keys, so two suites sharing a user would lock each other out.
+ */
 export const PIPELINE_ENV = {
+  ERGODEX_BATCH_USER: "ergodex-pipe",
   ERGODEX_BATCH_STATE_DIR: path.join(ROOT, ".data/batch-cluster-pipeline"),
   ERGODEX_BATCH_SSH_PORT: "2424",
   ERGODEX_BATCH_CTLD_PORT: "6857",
