@@ -1,4 +1,5 @@
 "use client";
+import { useEffect, useState } from "react";
 import { useExplorerPlot } from "@/lib/hooks/use-explorer";
 import { Card } from "@/components/ui/card";
 import { EstimatesPlot } from "./estimates-plot";
@@ -30,9 +31,7 @@ export function PlotPanel({ get, set, params, plotQuery }: { get: (k: string) =>
           </select>
         </label>
         {[["logX", "log x"], ["logY", "log y"], ["replicas", "per-replica points"]].map(([k, text]) => (
-          <label key={k} className="flex items-center gap-1.5 pb-1.5">
-            <input type="checkbox" checked={flag(k)} onChange={(e) => set({ [k]: e.target.checked ? "1" : null })} /> {text}
-          </label>
+          <FlagBox key={k} on={flag(k)} text={text} onChange={(on) => set({ [k]: on ? "1" : null })} />
         ))}
         <span className="text-xs text-ink-faint pb-1.5" aria-live="polite">{isFetching ? "plotting…" : ""}</span>
         {ready ? <span className="ml-auto"><ExportLinks base="/api/v1/plots/estimates" query={query} what="plot data" testId="plot-export" /></span> : null}
@@ -42,5 +41,16 @@ export function PlotPanel({ get, set, params, plotQuery }: { get: (k: string) =>
       {ready && data ? (data.series.length ? <EstimatesPlot data={data} observable={observable} x={x} logX={flag("logX")} logY={flag("logY")} replicas={flag("replicas")} />
         : <p className="text-sm text-ink-soft py-8 text-center">No estimate of <span className="mono">{observable}</span> with a numeric <span className="mono">{x}</span> matches these filters.</p>) : null}
     </Card>
+  );
+}
+
+/** A checkbox kept in the URL; it flips at once, because the URL (router.replace) catches up only a moment later. */
+function FlagBox({ on, text, onChange }: { on: boolean; text: string; onChange: (on: boolean) => void }) {
+  const [checked, setChecked] = useState(on);
+  useEffect(() => setChecked(on), [on]);
+  return (
+    <label className="flex items-center gap-1.5 pb-1.5">
+      <input type="checkbox" checked={checked} onChange={(e) => { setChecked(e.target.checked); onChange(e.target.checked); }} /> {text}
+    </label>
   );
 }

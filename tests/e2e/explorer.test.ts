@@ -53,11 +53,11 @@ describe("explorer and run analysis in the browser", () => {
   it("filters to the scan, plots e against T with one error bar per temperature", async () => {
     await page.goto("/explorer");
     await page.getByRole("heading", { name: "Explorer" }).waitFor();
-    await page.getByLabel("Ensemble").selectOption(ensembleId);
+    await page.getByLabel("Ensemble", { exact: true }).selectOption(ensembleId);
     await page.waitForURL(new RegExp(`ensemble=${ensembleId}`));
-    await page.getByLabel("Observable").selectOption("e");
+    await page.getByLabel("Observable", { exact: true }).selectOption("e");
     await page.waitForURL(/observable=e/);
-    await page.getByLabel("x axis").selectOption("T");
+    await page.getByLabel("x axis", { exact: true }).selectOption("T");
     await until("3 point estimates of e", async () => (await page.getByTestId("explorer-table").locator("tr[data-estimate]").count()) === 3, 15_000, 300);
     // the table shows what the API says, in concise notation
     const api = ((await (await page.request.get(`/api/v1/estimates?ensemble=${ensembleId}&observable=e&sort=param:T&dir=asc`)).json()) as
@@ -81,13 +81,13 @@ describe("explorer and run analysis in the browser", () => {
   }, 60_000);
 
   it("a run's analysis recomputes the estimate live when the cut moves, and saving keeps the old version", async () => {
-    await page.getByLabel("Scope").selectOption("run");
+    await page.getByLabel("Scope", { exact: true }).selectOption("run");
     await until("6 run estimates", async () => (await page.getByTestId("explorer-table").locator("tr[data-estimate]").count()) === 6, 15_000, 300);
     const link = page.getByTestId("explorer-table").locator('a[href$="/analysis"]').first();
     runId = /\/runs\/([0-9a-f-]{36})\/analysis/.exec((await link.getAttribute("href"))!)![1];
     await link.click();
     await page.waitForURL(new RegExp(`/runs/${runId}/analysis$`));
-    await page.getByLabel("Observable").selectOption("e");
+    await page.getByLabel("Observable", { exact: true }).selectOption("e");
     const live = page.getByTestId("live-estimate");
     await live.waitFor();
     await page.getByTestId("series-chart").waitFor();
