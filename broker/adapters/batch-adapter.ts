@@ -1,17 +1,17 @@
 import { posix } from "node:path";
-import { SshConnection, type SshConnectionOptions } from "./ssh-connection.js";
-import { downloadDir, ensureRemoteDir, mapLimit } from "./sftp-files.js";
-import { ClusterError, ClusterProtocolError } from "./errors.js";
-import { mapSchedulerState } from "./batch-status.js";
-import { inspectCommand, inspectInput, parseInspect, type RunFolderInfo } from "./batch-inspect.js";
-import { IntervalGate, SchedulerListing, type SchedulerCallStats } from "./batch-listing.js";
-import { composeRunStatus } from "./batch-run-status.js";
+import { SshConnection, type SshConnectionOptions } from "./ssh-connection";
+import { downloadDir, ensureRemoteDir, mapLimit } from "./sftp-files";
+import { ClusterError, ClusterProtocolError } from "./errors";
+import { mapSchedulerState } from "./batch-status";
+import { inspectCommand, inspectInput, parseInspect, type RunFolderInfo } from "./batch-inspect";
+import { IntervalGate, SchedulerListing, type SchedulerCallStats } from "./batch-listing";
+import { composeRunStatus } from "./batch-run-status";
 import {
   ARRAYS_DIR, SAFE_PATH, groupDirOf, groupIdOf, renderBatchScript, renderTasks, wallMinutes, type ArrayTask,
-} from "./batch-script.js";
+} from "./batch-script";
 import type {
   ClusterAdapter, ClusterHealth, FetchedFile, RunStatus, StageRequest, SubmitRequest, SubmitResult,
-} from "./types.js";
+} from "./types";
 
 /** A login node of a batch-scheduled cluster, and how Ergodex behaves on it. */
 export interface BatchAdapterOptions extends SshConnectionOptions {

@@ -1,5 +1,5 @@
-import { ClusterProtocolError } from "./errors.js";
-import type { RunProgress } from "./types.js";
+import { ClusterProtocolError } from "./errors";
+import type { RunProgress } from "./types";
 
 /**
  * One exec on the login node that reads, for many runs at once, what lives in the run folders

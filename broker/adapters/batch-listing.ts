@@ -1,8 +1,8 @@
 import { posix } from "node:path";
-import type { SshConnection } from "./ssh-connection.js";
-import { ClusterProtocolError } from "./errors.js";
-import { parseSqueue, squeueCommand, type SchedulerRow } from "./batch-status.js";
-import { groupDirOf, groupIdFromJobName, parseTasks, type ArrayTask } from "./batch-script.js";
+import type { SshConnection } from "./ssh-connection";
+import { ClusterProtocolError } from "./errors";
+import { parseSqueue, squeueCommand, type SchedulerRow } from "./batch-status";
+import { groupDirOf, groupIdFromJobName, parseTasks, type ArrayTask } from "./batch-script";
 
 /**
  * The scheduler's job listing as the adapter sees it: one `squeue` per query interval at most

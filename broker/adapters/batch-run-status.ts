@@ -1,7 +1,7 @@
-import { mapSchedulerState } from "./batch-status.js";
-import type { RunFolderInfo } from "./batch-inspect.js";
-import type { RunTaskView } from "./batch-listing.js";
-import type { RunStatus } from "./types.js";
+import { mapSchedulerState } from "./batch-status";
+import type { RunFolderInfo } from "./batch-inspect";
+import type { RunTaskView } from "./batch-listing";
+import type { RunStatus } from "./types";
 
 /** A submission this adapter made that the last job listing may not show yet. */
 export interface OwnSubmission {

@@ -1,7 +1,7 @@
 import { createHash } from "node:crypto";
 import { posix } from "node:path";
-import { ClusterError } from "./errors.js";
-import type { RunResources } from "./types.js";
+import { ClusterError } from "./errors";
+import type { RunResources } from "./types";
 
 /**
  * The batch script and task map of one job array. One array per group of runs with the same

@@ -1,5 +1,5 @@
-import { ClusterProtocolError } from "./errors.js";
-import type { ClusterRunState, RunFailure } from "./types.js";
+import { ClusterProtocolError } from "./errors";
+import type { ClusterRunState, RunFailure } from "./types";
 
 /**
  * Reading the batch scheduler's job listing and turning its states into the adapter's.

@@ -1,13 +1,13 @@
 import { posix } from "node:path";
-import { SshConnection, type SshConnectionOptions } from "./ssh-connection.js";
-import { downloadDir, ensureRemoteDir, mapLimit } from "./sftp-files.js";
-import { ClusterError } from "./errors.js";
-import { NODE_COMMAND, checkReport, checkSubmit, toRunStatus, unknownStatus } from "./node-protocol.js";
+import { SshConnection, type SshConnectionOptions } from "./ssh-connection";
+import { downloadDir, ensureRemoteDir, mapLimit } from "./sftp-files";
+import { ClusterError } from "./errors";
+import { NODE_COMMAND, checkReport, checkSubmit, toRunStatus, unknownStatus } from "./node-protocol";
 import type {
   ClusterAdapter, ClusterHealth, FetchedFile, RunStatus, StageRequest, SubmitRequest, SubmitResult,
-} from "./types.js";
+} from "./types";
 
-export { sshKeyFingerprint } from "./host-key-fingerprint.js";
+export { sshKeyFingerprint } from "./host-key-fingerprint";
 
 /** Connection settings plus where runs live on the cluster. */
 export interface FakeClusterAdapterOptions extends SshConnectionOptions {

@@ -1,6 +1,6 @@
 import { Ajv, type ValidateFunction } from "ajv";
-import { ClusterProtocolError } from "./errors.js";
-import type { ClusterRunState, RunFailure, RunStatus } from "./types.js";
+import { ClusterProtocolError } from "./errors";
+import type { ClusterRunState, RunFailure, RunStatus } from "./types";
 
 /**
  * The broker's side of the `ergodex-node` exec protocol (docs/fake-cluster.md): the shapes

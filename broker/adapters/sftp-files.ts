@@ -2,9 +2,9 @@ import fs from "node:fs/promises";
 import path from "node:path";
 import type { FileEntry } from "ssh2";
 import ssh2 from "ssh2";
-import type { SshConnection } from "./ssh-connection.js";
-import { ClusterError } from "./errors.js";
-import type { FetchedFile } from "./types.js";
+import type { SshConnection } from "./ssh-connection";
+import { ClusterError } from "./errors";
+import type { FetchedFile } from "./types";
 
 const { STATUS_CODE } = ssh2.utils.sftp;
 const S_IFMT = 0o170000;

@@ -1,10 +1,10 @@
 import ssh2 from "ssh2";
 import type { Client, ClientChannel, SFTPWrapper } from "ssh2";
 import pino, { type Logger } from "pino";
-import { fingerprintOfBlob, parsePinnedFingerprint } from "./host-key-fingerprint.js";
+import { fingerprintOfBlob, parsePinnedFingerprint } from "./host-key-fingerprint";
 import {
   ClusterAuthError, ClusterError, ClusterProtocolError, ClusterUnreachableError, ExecTimeoutError, HostKeyMismatchError,
-} from "./errors.js";
+} from "./errors";
 
 /** Where and how to reach one cluster's login node. */
 export interface SshConnectionOptions {
