@@ -67,7 +67,8 @@ export function AnalysisView({ runId, observables, people, canSave }: { runId: s
         <>
           <Card title="Series and thermalisation cut"><SeriesChart a={a} /></Card>
           <div className="grid gap-4 lg:grid-cols-2">
-            <Card title={`Normalised autocorrelation · τ_int = ${formatPlain(a.estimate.tauInt, 4)}`}><AcfChart a={a} /></Card>
+            {/* τ_int stays out of the title: the uppercase title style would turn τ into a Latin-looking Τ */}
+            <Card title="Normalised autocorrelation"><p className="text-xs text-ink-soft -mt-2 mb-1">τ<sub>int</sub> = <span className="num">{formatPlain(a.estimate.tauInt, 4)}</span> at window W = <span className="num">{a.acf.window}</span></p><AcfChart a={a} /></Card>
             <Card title="Blocking curve"><BlockingChart a={a} /></Card>
           </div>
           <Card title="Stored versions"><EstimateVersions versions={a.versions} people={people} /></Card>

@@ -10,7 +10,7 @@ export function EstimateVersions({ versions, people }: { versions: EstimateVersi
   const sorted = [...versions].sort((a, b) => b.version - a.version);
   return (
     <table className="data" data-testid="versions">
-      <thead><tr><th className="n">Version</th><th className="n">Estimate</th><th className="n">τ<sub>int</sub></th><th className="n">Cut</th><th className="n">Window</th><th>Method</th><th>Chosen by</th><th>When</th></tr></thead>
+      <thead><tr><th className="n">Version</th><th className="n">Estimate</th><th className="n"><span className="normal-case">τ<sub>int</sub></span></th><th className="n">Cut</th><th className="n">Window</th><th>Method</th><th>Chosen by</th><th>When</th></tr></thead>
       <tbody>
         {sorted.map((v) => (
           <tr key={v.id} data-version={v.version} data-current={v.isCurrent ? "yes" : "no"}>

@@ -6,7 +6,8 @@ import { Pagination } from "@/components/ui/pagination";
 import { BASE_COLUMNS, DEFAULT_VISIBLE, paramColumn } from "./table-columns";
 import { ColumnChooser, useHiddenColumns } from "./column-chooser";
 
-type Meta = { numeric?: boolean; param?: boolean } | undefined;
+// keepCase: headers with Greek letters, which the uppercase header style would turn into look-alike Latin capitals (τ → Τ, χ → Χ)
+type Meta = { numeric?: boolean; param?: boolean; keepCase?: boolean } | undefined;
 
 // accessor-key columns carry their key, not an id, until the table resolves them
 const colId = (c: { id?: string }) => c.id ?? (c as { accessorKey?: string }).accessorKey ?? "";
@@ -45,13 +46,13 @@ export function ExplorerTable({ data, params, get, set, isPending, onClear, tool
                   const s = h.column.getIsSorted();
                   const meta = h.column.columnDef.meta as Meta;
                   return (
-                    <th key={h.id} className={`${meta?.numeric ? "n" : ""} ${meta?.param ? "normal-case mono" : ""}`} aria-sort={s ? (s === "desc" ? "descending" : "ascending") : undefined}>
+                    <th key={h.id} className={`${meta?.numeric ? "n" : ""} ${meta?.param ? "normal-case mono" : meta?.keepCase ? "normal-case" : ""}`} aria-sort={s ? (s === "desc" ? "descending" : "ascending") : undefined}>
                       {h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className={`${meta?.param ? "" : "uppercase"} tracking-wide hover:text-ink`}>
+                        <button type="button" onClick={h.column.getToggleSortingHandler()} className={`${meta?.param || meta?.keepCase ? "" : "uppercase"} tracking-wide hover:text-ink`}>
                           {flexRender(h.column.columnDef.header, h.getContext())}
                           <span aria-hidden className="ml-1 text-ink-faint">{s === "asc" ? "▲" : s === "desc" ? "▼" : "↕"}</span>
                         </button>
-                      ) : flexRender(h.column.columnDef.header, h.getContext())}
+                      ) : <span className={meta?.keepCase ? "normal-case" : ""}>{flexRender(h.column.columnDef.header, h.getContext())}</span>}
                     </th>
                   );
                 })}

@@ -1,7 +1,7 @@
 "use client";
 import { useEffect, useState } from "react";
 import type { ParamRange } from "@/lib/hooks/use-explorer-url";
-import { choicesFor, selectClass, type ExplorerOptions } from "./explorer-options";
+import { choicesFor, effectiveSampler, selectClass, type ExplorerOptions } from "./explorer-options";
 
 type Props = {
   get: (k: string) => string; set: (c: Record<string, string | null>) => void;
@@ -11,7 +11,7 @@ type Props = {
 /** Sampler, ensemble, tag, owner, observable and scope filters, and ranges of any parameter; all written to the URL. */
 export function ExplorerFilters({ get, set, ranges, setRanges, options, busy }: Props) {
   const sampler = get("sampler");
-  const { observables, params } = choicesFor(options, sampler);
+  const { observables, params } = choicesFor(options, effectiveSampler(options, sampler, get("ensemble")));
   const [tag, setTag] = useState(get("tag"));
   useEffect(() => setTag(get("tag")), [get]);
   useEffect(() => {
@@ -34,6 +34,8 @@ export function ExplorerFilters({ get, set, ranges, setRanges, options, busy }: 
           <select aria-label="Ensemble" value={get("ensemble")} onChange={(e) => set({ ensemble: e.target.value || null })} className={`${selectClass} max-w-64`}>
             <option value="">any</option>
             {ensembles.map((e) => <option key={e.id} value={e.id}>{e.name}</option>)}
+            {/* an ensemble from a link that is not offered (older, or not visible) still shows as the active filter, never as "any" */}
+            {get("ensemble") && !ensembles.some((e) => e.id === get("ensemble")) ? <option value={get("ensemble")}>ensemble {get("ensemble").slice(0, 8)}… (from the link)</option> : null}
           </select>
         </label>
         <label className={label}>Observable

@@ -12,4 +12,9 @@ export function choicesFor(o: ExplorerOptions, sampler: string) {
   return { observables: uniq(list.flatMap((s) => s.observables)), params: uniq(list.flatMap((s) => s.params)) };
 }
 
+/** The sampler whose observables and parameters apply: the chosen one, else the chosen ensemble's. */
+export function effectiveSampler(o: ExplorerOptions, sampler: string, ensemble: string) {
+  return sampler || o.ensembles.find((e) => e.id === ensemble)?.sampler || "";
+}
+
 export const selectClass = "rounded-md border border-line-strong bg-paper-raised px-2 py-1 text-sm";

@@ -9,7 +9,7 @@ import { PlotPanel } from "./plot-panel";
 import { ExportLinks } from "./export-links";
 import { SaveView } from "./save-view";
 import { EmptyExplorer } from "./empty-explorer";
-import { choicesFor, type ExplorerOptions } from "./explorer-options";
+import { choicesFor, effectiveSampler, type ExplorerOptions } from "./explorer-options";
 
 const FILTER_KEYS = ["sampler", "ensemble", "tag", "owner", "observable", "scope"];
 
@@ -18,7 +18,8 @@ export function ExplorerView({ options }: { options: ExplorerOptions }) {
   const url = useExplorerUrl();
   const { get, set, ranges, setRanges, tableQuery, plotQuery } = url;
   const { data, error, isPending, isFetching } = useExplorerEstimates(tableQuery);
-  const { params } = choicesFor(options, get("sampler"));
+  // one ensemble chosen: only its sampler's parameters get columns and x-axis choices
+  const { params } = choicesFor(options, effectiveSampler(options, get("sampler"), get("ensemble")));
   const filtered = FILTER_KEYS.some((k) => get(k)) || ranges.length > 0;
   const clear = useCallback(() => { set(Object.fromEntries(FILTER_KEYS.map((k) => [k, null]))); setRanges([]); }, [set, setRanges]);
   if (data && data.total === 0 && !filtered) return <EmptyExplorer />;
