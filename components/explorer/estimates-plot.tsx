@@ -19,12 +19,13 @@ export function EstimatesPlot({ data, observable, x, logX, logY, replicas }: { d
     const reps: Datum[] = s.points.flatMap((p) => p.runs ?? []).map((r) => ({ x: r.x, mean: r.mean, error: r.error, tau: null })).filter(ok);
     return { key: s.key, label: s.label, pts: pts.sort((a, b) => a.x - b.x), reps };
   });
+  // the x axis spans the data with a margin: rounded-out bounds left empty room and put the first point on the y axis
   return (
     <figure data-testid="explorer-plot" aria-label={`${observable} against ${x}`}>
       <ResponsiveContainer width="100%" height={360}>
         <ScatterChart margin={{ top: 12, right: 24, bottom: 24, left: 12 }}>
           <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" />
-          <XAxis dataKey="x" type="number" name={x} scale={logX ? "log" : "auto"} domain={["auto", "auto"]} tick={{ fontSize: 11 }}
+          <XAxis dataKey="x" type="number" name={x} scale={logX ? "log" : "auto"} domain={["dataMin", "dataMax"]} padding={{ left: 20, right: 20 }} tick={{ fontSize: 11 }}
             tickFormatter={(v: number) => formatPlain(v, 4)} label={{ value: `${x}${logX ? " (log)" : ""}`, position: "insideBottom", offset: -12, fontSize: 12 }} />
           <YAxis dataKey="mean" type="number" name={observable} scale={logY ? "log" : "auto"} domain={["auto", "auto"]} tick={{ fontSize: 11 }} width={72}
             tickFormatter={(v: number) => formatPlain(v, 4)} label={{ value: `${observable}${logY ? " (log)" : ""}`, angle: -90, position: "insideLeft", fontSize: 12 }} />
