@@ -2,17 +2,9 @@
 import { validate } from "@/lib/validation";
 import { runInputSchema } from "@/lib/samplers/schemas";
 
-/** run.json as DESIGN.md defines it. */
-export type RunInput = {
-  format: "ergodex.run/1";
-  runId: string;
-  sampler: { name: string; version: string };
-  params: Record<string, unknown>;
-  seed: string;
-  thermalization: number;
-  measurements: number;
-  interval: number;
-};
+/** run.json as DESIGN.md defines it: the samplers' own type, so the two sides cannot drift. */
+export type { RunInput } from "@/lib/samplers/validate";
+import type { RunInput } from "@/lib/samplers/validate";
 
 /** What run.json is built from: the run, its point, its ensemble's spec and sampler. */
 export type RunInputSource = {

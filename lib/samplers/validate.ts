@@ -101,7 +101,7 @@ export function validateParams(name: string, params: unknown): Checked<Record<st
 }
 
 /** The run.json contract (DESIGN.md), after validation. */
-export interface RunInput {
+export type RunInput = {
   format: "ergodex.run/1";
   runId: string;
   sampler: { name: string; version: string };
@@ -111,7 +111,7 @@ export interface RunInput {
   measurements: number;
   interval: number;
   encoding?: "csv" | "f64le";
-}
+};
 
 /** Validate a parsed run.json (shape only; sampler params are checked by validateParams). */
 export function validateRunInput(input: unknown): Checked<RunInput> {
