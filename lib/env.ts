@@ -56,7 +56,7 @@ export const env = {
     /** Largest JSON body a route handler accepts. */
     maxBodyBytes: int("ERGODEX_MAX_BODY", 1_048_576),
   },
-  cluster: { port: int("ERGODEX_CLUSTER_PORT", 2222), stateDir: path.join(dataDir, "cluster-fake") },
+  cluster: { port: int("ERGODEX_CLUSTER_PORT", 2222), stateDir: path.join(dataDir, "cluster-fake"), /** runs the loopback node executes at once */ slots: int("ERGODEX_CLUSTER_SLOTS", 2) },
   smtp: { port: int("ERGODEX_SMTP_PORT", 2525), mailDir: path.join(dataDir, "mail") },
   broker: {
     healthPort: int("ERGODEX_BROKER_PORT", 3418),

@@ -22,7 +22,7 @@ function clientPrivateKey(): string {
 
 const result = await seedDemo({
   host: "127.0.0.1", port: env.cluster.port, username: "ergodex", hostKeyFingerprint: sshKeyFingerprint(hostKey.publicKey),
-  clientPrivateKey, workDir: "work", samplerCommand: "npm run sampler --",
+  clientPrivateKey, workDir: "work", samplerCommand: "npm run sampler --", slotLimit: env.cluster.slots,
 });
 console.log(result.created.length ? `seeded: ${result.created.join("; ")}` : "demo scenario already present; nothing changed");
 await db().sequelize.close();

@@ -22,6 +22,8 @@ export ERGODEX_BROKER_PORT="${ERGODEX_TEST_BROKER_PORT:-3428}"
 export ERGODEX_PG_TEMPLATE_DB=ergodex_template
 export ERGODEX_DIGEST_SECONDS=3
 export ERGODEX_POLL_SECONDS=1
+# unit, integration and e2e projects share this stack; four slots keep one long run from queueing the rest
+export ERGODEX_CLUSTER_SLOTS=4
 export NEXTAUTH_URL="http://127.0.0.1:$ERGODEX_PORT"
 unset ERGODEX_PG_DATA
 

@@ -16,6 +16,8 @@ export type FakeClusterLink = {
   clientPrivateKey: () => string;
   workDir: string;
   samplerCommand: string;
+  /** As many runs as the loopback node executes at once. */
+  slotLimit: number;
 };
 
 export async function seedDemo(link: FakeClusterLink): Promise<{ created: string[] }> {
@@ -51,7 +53,7 @@ export async function seedDemo(link: FakeClusterLink): Promise<{ created: string
       await m.Cluster.create({
         name: DEMO_CLUSTER.name, kind: "fake-ssh", host: link.host, port: link.port, username: link.username,
         hostKeyFingerprint: link.hostKeyFingerprint, privateKeyEncrypted: sealSecret(link.clientPrivateKey()),
-        workDir: link.workDir, slotLimit: 2, healthy: true, settings: { samplerCommand: link.samplerCommand, pollSeconds: 2 },
+        workDir: link.workDir, slotLimit: link.slotLimit, healthy: true, settings: { samplerCommand: link.samplerCommand, pollSeconds: 2 },
       }, { transaction });
       created.push(`cluster ${DEMO_CLUSTER.name}`);
     } else if (existing.port !== link.port || existing.hostKeyFingerprint !== link.hostKeyFingerprint) {

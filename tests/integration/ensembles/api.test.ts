@@ -112,7 +112,7 @@ describe("HTTP API", () => {
 });
 
 /** Poll the detail endpoint until every run has ended (the broker and the loopback cluster run it), or give up. */
-async function untilEnded(id: string, deadlineMs = 90_000) {
+async function untilEnded(id: string, deadlineMs = 240_000) {
   const t0 = Date.now();
   for (;;) {
     const d = (await api("GET", `/api/v1/ensembles/${id}`, { token })).json!.data;
@@ -142,7 +142,7 @@ describe("a submitted ensemble, once run by the stack", () => {
       expect(Number.isFinite(Number(r[col("mean")]))).toBe(true);
       expect(Number(r[col("error")])).toBeGreaterThan(0);
     }
-  }, 120_000);
+  }, 300_000);
 });
 
 describe("the ergodex CLI", () => {
