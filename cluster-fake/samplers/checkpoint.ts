@@ -7,20 +7,12 @@ import fs from "node:fs";
 import path from "node:path";
 import { BadInputError } from "./errors";
 import { hashPrefix, writeJsonAtomic } from "./bundle";
+import type { RunInput } from "../../lib/samplers/validate";
 
 export const CHECKPOINT_FILE = "checkpoint.json";
 
-/** The identity a checkpoint must share with the run.json that resumes it. */
-export interface RunIdentity {
-  runId: string;
-  sampler: { name: string; version: string };
-  params: Record<string, unknown>;
-  seed: string;
-  thermalization: number;
-  measurements: number;
-  interval: number;
-  encoding: string;
-}
+/** The identity a checkpoint must share with the run.json that resumes it (run.json less its format tag). */
+export type RunIdentity = Omit<RunInput, "format" | "encoding"> & { encoding: string };
 
 /** Contents of checkpoint.json. */
 export interface Checkpoint {
