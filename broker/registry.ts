@@ -9,8 +9,11 @@ import { sendMailJob } from "./jobs/send-mail";
 import { failureDigestJob } from "./jobs/failure-digest";
 import { checkAllocationJob } from "./jobs/check-allocation";
 import { verifyManuscriptJob } from "./jobs/verify-manuscript";
+import { allocationDigestJob } from "./jobs/allocation-digest";
+import { replayRunJob } from "./jobs/replay-run";
 
 /** The registry: one entry per queue the broker works. */
 export const JOBS: readonly JobDefinition<never>[] = [
   dispatchRunsJob, pollClustersJob, collectRunJob, cancelRunsJob, sendMailJob, failureDigestJob, checkAllocationJob, verifyManuscriptJob,
+  replayRunJob, allocationDigestJob,
 ] as unknown as JobDefinition<never>[];

@@ -2,6 +2,9 @@
 // tests/integration/auth/matrix.test.ts). Each call gets a fresh manuscript of group A created by its leading PI:
 // "draft" (no exhibits), "ready" (one exhibit over a run estimate, so it can be frozen) or "frozen".
 import crypto from "node:crypto";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
 import type { ActionDef } from "@/lib/auth/action";
 import type { Role } from "@/lib/auth/roles";
 import * as manuscriptActions from "@/lib/actions/manuscripts";
@@ -9,6 +12,8 @@ import { writeEstimateVersions } from "@/lib/estimates/write-estimates";
 import { addExhibit, createManuscript } from "@/lib/manuscripts/edit-manuscript";
 import { freezeManuscript } from "@/lib/manuscripts/freeze-manuscript";
 import { requestVerification } from "@/lib/manuscripts/verify-manuscript";
+import { transitionRun } from "@/lib/runs/transition-run";
+import { archiveFile } from "@/lib/storage/archive-file";
 import { db } from "@/models";
 import { makeEnsemble } from "@/tests/support/db";
 import type { makeMatrixPeople, Person } from "@/tests/integration/auth/people-fixture";
@@ -29,6 +34,28 @@ export async function matrixEstimate(fx: Fx): Promise<{ ensembleId: string; runI
     thermCut: 0, n: 100, window: 5, method: "gamma-wolff", analysisVersion: "matrix", chosenById: null, chosenAt: null,
   }], transaction));
   return { ensembleId: ensemble.id, runId: runs[0].id, estimateId: est.id };
+}
+
+/** A fresh done run of group A on a (placeholder) cluster, owned by the group's researcher: replayable. */
+export async function matrixDoneRun(fx: Fx): Promise<string> {
+  const owner = (await db().User.findByPk(researcherOf(fx).id))!;
+  const { runs } = await makeEnsemble({ owner, group: fx.groupA, points: [{ L: 4, T: 2 }], replicas: 1 });
+  for (const to of ["dispatched", "running", "collecting", "done"] as const) await transitionRun(runs[0].id, to, { cause: "test.matrix" });
+  return runs[0].id;
+}
+
+/** A fresh done run of group A with one archived file (random bytes, so its own sha256); returns the download path. */
+export async function matrixRunFile(fx: Fx): Promise<string> {
+  const runId = await matrixDoneRun(fx);
+  const tmp = path.join(os.tmpdir(), `ergodex-matrix-${crypto.randomBytes(6).toString("hex")}.csv`);
+  fs.writeFileSync(tmp, `lambda\n${crypto.randomInt(1e9)}\n`);
+  try {
+    const a = await archiveFile(tmp, { name: "spectrum.csv" });
+    await db().RunArtifact.create({ runId, path: "spectrum.csv", artifactSha256: a.sha256, role: "extra" });
+    return `/api/v1/provenance/runs/${runId}/files/${a.sha256}`;
+  } finally {
+    fs.rmSync(tmp, { force: true });
+  }
 }
 
 /** A fresh manuscript of group A in the given state. */
@@ -70,6 +97,11 @@ export const MANUSCRIPT_ROUTES: { file: string; method: string; path: (fx: Fx, p
   { file: "app/api/v1/provenance/runs/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/provenance/runs/${(await matrixEstimate(fx)).runId}`, expect: READ_A },
   { file: "app/api/v1/provenance/ensembles/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/provenance/ensembles/${(await matrixEstimate(fx)).ensembleId}`, expect: READ_A },
   { file: "app/api/v1/provenance/estimates/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/provenance/estimates/${(await matrixEstimate(fx)).estimateId}?format=listing-csv`, expect: READ_A },
+  // the run's owner (the group's researcher), a PI of the group and an admin may replay; a viewer reads the replays
+  { file: "app/api/v1/runs/[id]/replay/route.ts", method: "POST", path: async (fx) => `/api/v1/runs/${await matrixDoneRun(fx)}/replay`,
+    expect: { anonymous: 401, viewer: 403, researcher: { member: 202, outsider: 404 }, pi: { member: 202, outsider: 404 }, coordinator: 403, admin: 202 } },
+  { file: "app/api/v1/runs/[id]/replay/route.ts", method: "GET", path: async (fx) => `/api/v1/runs/${await matrixDoneRun(fx)}/replay`, expect: READ_A },
+  { file: "app/api/v1/provenance/runs/[id]/files/[sha256]/route.ts", method: "GET", path: (fx) => matrixRunFile(fx), expect: READ_A },
   { file: "app/api/v1/audit/route.ts", method: "GET", path: () => "/api/v1/audit?pageSize=5", expect: { anonymous: 401, viewer: 403, researcher: 403, pi: 200, coordinator: 403, admin: 200 } },
 ];
 
