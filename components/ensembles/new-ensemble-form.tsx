@@ -11,6 +11,7 @@ import { SamplerFields } from "./sampler-fields";
 import { RunFields } from "./run-fields";
 import { SpecFileInput } from "./spec-file-input";
 import { PreviewPanel, type SpecPreview } from "./preview-panel";
+import { PlannerPanel } from "@/components/planner/planner-panel";
 
 type Mode = "form" | "file";
 
@@ -78,6 +79,7 @@ export function NewEnsembleForm({ samplers, example, seed }: { samplers: Sampler
       </div>
       <div className="space-y-3 lg:sticky lg:top-4 self-start">
         <PreviewPanel state={preview} />
+        {mode === "form" ? <PlannerPanel draft={draft} spec={spec} update={update} reservation={preview.status === "ok" ? preview.data.coreHoursNeeded : null} /> : null}
         {refusal ? <p role="alert" className="text-sm text-danger" data-testid="submit-error">Not submitted: {refusal}</p> : null}
         <Button type="submit" disabled={!ready || submitting} className="w-full justify-center">{submitting ? "Submitting…" : "Submit ensemble"}</Button>
         <p className="text-xxs text-ink-faint">Submitting reserves the core-hours above on the allocation; what the runs do not use is released when they end.</p>

@@ -6,6 +6,7 @@ import type { Transaction } from "sequelize";
 import { modelsFor } from "@/lib/db/models-for";
 import { computePointEstimates } from "@/lib/estimates/compute-point-estimates";
 import { enqueueEnsembleDoneMail } from "@/lib/mail/ensemble-done";
+import { recordPlanOutcomes } from "@/lib/planner/record-outcome";
 import type { EnsembleState } from "@/models/ensemble";
 import type { RunState } from "@/models/run";
 
@@ -52,6 +53,7 @@ export async function afterRunFinal(run: { ensembleId: string; pointId: string }
   if (!open && (ensemble.state === "active" || ensemble.finishedAt === null)) {
     await ensemble.update({ state: ensembleOutcome(ensemble.state as EnsembleState, counts), finishedAt: ensemble.finishedAt ?? new Date() }, { transaction });
     await enqueueEnsembleDoneMail(ensemble.id, { transaction }); // only if the spec asks (notify.onDone)
+    await recordPlanOutcomes(ensemble, { transaction }); // only if a spec tag names a planner prediction
   }
   return { pointEstimated, ensembleState: ensemble.state as EnsembleState };
 }
