@@ -53,7 +53,7 @@ export function chainRelUncertainty(c: Pick<PilotChain, "n" | "tauInt" | "window
 /**
  * Combine the pilot chains at one point: tau_int (in sweeps) and Γ(0) averaged over chains, the
  * uncertainty of their product the larger of the error-of-error propagated (÷√chains) and the
- * chains' own scatter of n·error² (÷√chains, from 3 chains on), seconds per sweep the median.
+ * chains' own scatter of n·error² (÷√chains, from 3 chains on); the cost per sweep from timing().
  */
 export function pointStats(chains: PilotChain[]): PointStats {
   if (chains.length === 0) throw new AppError("invalid", "pointStats: no pilot chains");
@@ -74,11 +74,31 @@ export function pointStats(chains: PilotChain[]): PointStats {
     const sd = Math.sqrt(cf.reduce((a, x) => a + (x - m) ** 2, 0) / (k - 1));
     scatter = sd / m / Math.sqrt(k);
   }
-  const rates = chains.filter((c) => c.wallSeconds !== null && c.sweeps !== null && c.sweeps > 0 && c.wallSeconds > 0)
-    .map((c) => c.wallSeconds! / c.sweeps!).sort((a, b) => a - b);
-  const secondsPerSweep = rates.length ? (rates.length % 2 ? rates[(rates.length - 1) / 2] : (rates[rates.length / 2 - 1] + rates[rates.length / 2]) / 2) : null;
+  const { secondsPerSweep, overheadSeconds } = timing(chains);
   return {
-    tauSweeps, variance, relUncertainty: Math.max(propagated, scatter), secondsPerSweep,
+    tauSweeps, variance, relUncertainty: Math.max(propagated, scatter), secondsPerSweep, overheadSeconds,
     cutSweeps: mean(chains.map((c) => c.thermCut * c.interval)), minN: Math.min(...chains.map((c) => c.n)), chains: k,
   };
+}
+
+/**
+ * Wall time per run as overhead + secondsPerSweep × sweeps. When the timed chains ran lengths at
+ * least 1.5× apart, a least-squares line gives both (overhead clamped at ≥ 0, refitted through the
+ * origin if negative); otherwise the median of wall ÷ sweeps, with the start-up inside it.
+ */
+export function timing(chains: PilotChain[]): { secondsPerSweep: number | null; overheadSeconds: number } {
+  const timed = chains.filter((c) => c.wallSeconds !== null && c.sweeps !== null && c.sweeps > 0 && c.wallSeconds > 0);
+  if (!timed.length) return { secondsPerSweep: null, overheadSeconds: 0 };
+  const xs = timed.map((c) => c.sweeps!), ys = timed.map((c) => c.wallSeconds!);
+  if (Math.max(...xs) >= 1.5 * Math.min(...xs)) {
+    const mx = xs.reduce((a, b) => a + b, 0) / xs.length, my = ys.reduce((a, b) => a + b, 0) / ys.length;
+    const sxy = xs.reduce((a, x, i) => a + (x - mx) * (ys[i] - my), 0), sxx = xs.reduce((a, x) => a + (x - mx) ** 2, 0);
+    const slope = sxy / sxx, overhead = my - slope * mx;
+    if (slope > 0 && overhead >= 0) return { secondsPerSweep: slope, overheadSeconds: overhead };
+    const through = xs.reduce((a, x, i) => a + x * ys[i], 0) / xs.reduce((a, x) => a + x * x, 0);
+    return { secondsPerSweep: through, overheadSeconds: 0 };
+  }
+  const rates = timed.map((c) => c.wallSeconds! / c.sweeps!).sort((a, b) => a - b);
+  const mid = rates.length / 2;
+  return { secondsPerSweep: rates.length % 2 ? rates[(rates.length - 1) / 2] : (rates[mid - 1] + rates[mid]) / 2, overheadSeconds: 0 };
 }

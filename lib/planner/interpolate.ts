@@ -62,6 +62,7 @@ export function locate(target: Record<string, ParamValue>, measured: MeasuredPoi
       variance: lerp(x0, s0.variance, x1, s1.variance, x),
       relUncertainty: Math.max(s0.relUncertainty, s1.relUncertainty),
       secondsPerSweep: s0.secondsPerSweep !== null && s1.secondsPerSweep !== null ? lerp(x0, s0.secondsPerSweep, x1, s1.secondsPerSweep, x) : s0.secondsPerSweep ?? s1.secondsPerSweep,
+      overheadSeconds: Math.max(s0.overheadSeconds, s1.overheadSeconds),
       cutSweeps: Math.max(s0.cutSweeps, s1.cutSweeps),
       minN: Math.min(s0.minN, s1.minN),
       chains: s0.chains + s1.chains,

@@ -45,7 +45,7 @@ export function planFromMeasured(req: PlanRequest, measured: MeasuredPoint[], pi
   const points: PointPlan[] = located.map((l, i) => {
     const tauInt = tauAt(l);
     const predictedError = errorAfter({ tauInt, variance: l.stats.variance, replicas: req.replicas, measurements: measurements - cutAllowance });
-    const secondsPerRun = l.stats.secondsPerSweep === null ? null : l.stats.secondsPerSweep * sweepsPerReplica;
+    const secondsPerRun = l.stats.secondsPerSweep === null ? null : l.stats.overheadSeconds + l.stats.secondsPerSweep * sweepsPerReplica;
     return {
       params: req.points[i], derivation: l.derivation, tauInt, variance: l.stats.variance, measurementsNeeded: needs[i],
       relUncertainty: l.stats.relUncertainty, predictedError, predictedErrorUncertainty: (predictedError * l.stats.relUncertainty) / 2,
@@ -70,7 +70,7 @@ export function planFromMeasured(req: PlanRequest, measured: MeasuredPoint[], pi
   const timed = points.every((p) => p.secondsPerRun !== null);
   if (!timed) warnings.push("no run times recorded for some pilot points: core-hours cannot be priced there");
   assumptions.push(
-    "seconds per sweep = wall seconds between a pilot run's start and end (as the scheduler reported and the ledger charged) ÷ its sweeps, thermalisation included; the median over the chains at a point. Start-up time is spread over the sweeps, so short pilots overstate the cost of long runs",
+    "run time = wall seconds between a run's start and end (as the scheduler reported and the ledger charged), thermalisation included: a straight line overhead + seconds per sweep × sweeps where the chains at a point ran lengths ≥ 1.5× apart, else the median of wall ÷ sweeps — start-up then spread over the sweeps, so a short pilot overstates the cost of a long run",
     "the run time scales linearly with sweeps and does not depend on the cores per run (the built-in samplers are single-threaded)",
     `replicas are independent and combined by inverse variance: each contributes measurements ÷ 2·tau_int independent samples`,
     `the suggested wall time is ${wallMargin}× the slowest point's expected run time (common practice), rounded up to whole minutes`,

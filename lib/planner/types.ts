@@ -38,6 +38,8 @@ export type PointStats = {
   relUncertainty: number;
   /** Wall seconds per sweep, null when no chain there recorded its times. */
   secondsPerSweep: number | null;
+  /** Fixed seconds per run (start-up), fitted when the chains ran different lengths; else 0 (spread over the sweeps). */
+  overheadSeconds: number;
   /** Measurements the pilot's thermalisation cut discarded, in sweeps (mean over chains). */
   cutSweeps: number;
   /** Measurements per chain at this point (smallest), for the few-measurements warning. */

@@ -3,7 +3,7 @@
 // (Madras & Sokal 1988; Wolff 2004) and Var(x) = σ_ε²/(1−φ²).
 import { describe, expect, it } from "vitest";
 import { estimateSeries } from "@/lib/analysis";
-import { errorAfter, measurementsForTarget } from "@/lib/planner/formula";
+import { errorAfter, measurementsForTarget, timing } from "@/lib/planner/formula";
 import { measuredPoints } from "@/lib/planner/measured-points";
 import { planFromMeasured } from "@/lib/planner/plan";
 import type { PilotChain, PlanRequest } from "@/lib/planner/types";
@@ -53,6 +53,18 @@ describe("the formula error² = 2·tau_int·variance/(R·N)", () => {
     expect(plan.coreHours).toBeCloseTo((2 * R * 2 * 0.002 * plan.sweepsPerReplica) / 3600, 12);
     expect(plan.wallMinutes).toBe(Math.ceil((1.5 * 0.002 * plan.sweepsPerReplica) / 60));
     expect(plan.reservationCoreHours).toBeCloseTo((plan.runs * 2 * plan.wallMinutes!) / 60, 12);
+  });
+
+  it("separates start-up from the cost per sweep when the chains ran different lengths (least squares)", () => {
+    // wall = 2 s + 0.001 s × sweeps, exactly
+    const chains = [1000, 4000, 16000].map((n) => exactChain(n, { sweeps: n, wallSeconds: 2 + 0.001 * n }));
+    const t = timing(chains);
+    expect(t.secondsPerSweep).toBeCloseTo(0.001, 12);
+    expect(t.overheadSeconds).toBeCloseTo(2, 9);
+    // equal lengths cannot separate the two: the median of wall ÷ sweeps, start-up included
+    expect(timing([exactChain(1000, { wallSeconds: 3 }), exactChain(1000, { wallSeconds: 5 })])).toEqual({ secondsPerSweep: 0.004, overheadSeconds: 0 });
+    const plan = planFromMeasured(req({ thermalization: 0 }), measuredPoints(chains), [1], [0]);
+    expect(plan.points[0].secondsPerRun).toBeCloseTo(2 + 0.001 * plan.sweepsPerReplica, 9);
   });
 
   it("converts tau_int between measurement intervals through sweeps, and warns that it did", () => {

@@ -5,7 +5,7 @@ import { planFromMeasured } from "@/lib/planner/plan";
 import type { MeasuredPoint, PointStats } from "@/lib/planner/types";
 
 const stats = (tauSweeps: number, variance: number, secondsPerSweep: number | null = 0.01): PointStats =>
-  ({ tauSweeps, variance, relUncertainty: 0.05, secondsPerSweep, cutSweeps: 0, minN: 10_000, chains: 2 });
+  ({ tauSweeps, variance, relUncertainty: 0.05, secondsPerSweep, overheadSeconds: 0, cutSweeps: 0, minN: 10_000, chains: 2 });
 const at = (T: number, s: PointStats, L = 8): MeasuredPoint => ({ params: { L, T, algorithm: "metropolis" }, stats: s, chains: [] });
 const measured = [at(2.0, stats(2, 1, 0.01)), at(3.0, stats(8, 3, 0.03)), at(2.5, stats(1, 1), 16)];
 
