@@ -11,9 +11,11 @@ export class Allocation extends Model<InferAttributes<Allocation>, InferCreation
   declare periodStart: Date;
   /** Exclusive end of the period; a CHECK keeps it after periodStart. */
   declare periodEnd: Date;
-  /** Most core-hours one person may charge in this allocation; null = no cap. */
+  /** The cluster these hours are for; null = any cluster (#8). */
+  declare clusterId: CreationOptional<string | null>;
+  /** Most core-hours one person may charge in this allocation; null = no cap. The default cap when allocation_caps has no 'everyone' row (lib/allocations/caps.ts). */
   declare perPersonCapCoreHours: CreationOptional<number | null>;
-  /** When the 80 % and 100 % use e-mails went out (each at most once). */
+  /** When the 80 % and 100 % use e-mails went out; cleared (re-armed) when use drops below again. */
   declare alertedAt80: CreationOptional<Date | null>;
   declare alertedAt100: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
@@ -34,6 +36,7 @@ export function initAllocation(sequelize: Sequelize, M: typeof Allocation = Allo
       name: { type: DataTypes.TEXT, allowNull: false },
       periodStart: { type: DataTypes.DATE, allowNull: false },
       periodEnd: { type: DataTypes.DATE, allowNull: false },
+      clusterId: { type: DataTypes.UUID, allowNull: true },
       perPersonCapCoreHours: asNumber(CORE_HOURS, "perPersonCapCoreHours", { allowNull: true }),
       // Explicit: the default underscoring would give "alerted_at80".
       alertedAt80: { type: DataTypes.DATE, allowNull: true, field: "alerted_at_80" },

@@ -63,6 +63,8 @@ function describeError(status, body, text) {
   const lines = [`${e.message} (${e.code}, HTTP ${status})`];
   for (const i of e.issues ?? []) lines.push(`  ${i.path}: ${i.message}`);
   if (e.needed !== undefined && e.available !== undefined && !/needs/.test(e.message)) lines.push(`  needed ${e.needed} core-hours, available ${e.available}`);
+  // admission refusals (#8): which limit bit; the message already says whom to ask
+  if (e.limit) lines.push(`  refused by: ${String(e.limit).replace(/_/g, " ")} (needed ${e.needed} core-hours, free ${e.free ?? e.available})`);
   return lines.join("\n");
 }
 

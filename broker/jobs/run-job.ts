@@ -36,6 +36,7 @@ export async function startWorkers(boss: PgBoss, def: JobDefinition<never>, log:
   const options = queueOptions(def);
   await boss.createQueue(def.name, options);
   await boss.updateQueue(def.name, options); // a sender may have created it first, with defaults
+  if (def.schedule) await boss.schedule(def.name, def.schedule.cron, {}, { tz: def.schedule.tz ?? "UTC" });
   const handler = async (jobs: PgBoss.JobWithMetadata<unknown>[]) => {
     for (const job of jobs) await runOne(boss, def, job, log);
   };

@@ -25,6 +25,8 @@ export type JobDefinition<T = Record<string, unknown>> = {
   expireInSeconds?: number;
   /** Jobs of this queue handled at once in this process (default 1). */
   concurrency?: number;
+  /** A pg-boss cron schedule: the broker queues one job (empty payload) at each tick. */
+  schedule?: { cron: string; tz?: string };
 };
 
 /**

@@ -51,6 +51,7 @@ function PreviewFigures({ p }: { p: SpecPreview }) {
           </table>
         </div>
       ) : null}
+      {p.warnings?.length ? <ul className="text-ink space-y-1 rounded bg-danger-soft/60 px-2 py-1" data-testid="preview-warnings">{p.warnings.map((w, k) => <li key={k}>⚠ {w}</li>)}</ul> : null}
       {p.problems.length ? (
         <ul role="alert" className="text-danger space-y-1" data-testid="preview-refusal">{p.problems.map((x, k) => <li key={k}>{x.path ? <span className="mono text-xs text-ink-soft">{x.path} </span> : null}{x.message}</li>)}</ul>
       ) : <p className="text-state-done" data-testid="preview-ok">● Ready to submit.</p>}

@@ -3,7 +3,7 @@ import "server-only";
 import { AppError } from "@/lib/errors";
 import type { Identity } from "@/lib/auth/identity";
 import { expandSpec, type EnsembleSpec } from "@/lib/spec";
-import { checkFunds } from "./funds";
+import { checkFunds, type AdmissionExplanation } from "./funds";
 import { coreHoursPerRun, resolvePlacement } from "./placement";
 
 /** The preview shown before submitting (form, API, CLI). */
@@ -17,7 +17,11 @@ export type SubmissionPreview = {
   coreHoursNeeded: number;
   allocation: { id: string; name: string; available: number } | null;
   cluster: { id: string; name: string } | null;
-  cap: { limit: number; used: number; remaining: number } | null;
+  cap: { limit: number; used: number; remaining: number; rule?: string } | null;
+  /** Why the submission would be refused (limit, needed, free, who to ask); null when it would be admitted. */
+  explanation: AdmissionExplanation | null;
+  /** Things to know before submitting that do not refuse it (e.g. near the per-person cap). */
+  warnings: string[];
   ok: boolean;
   problems: { path?: string; code: string; message: string }[];
 };
@@ -30,14 +34,16 @@ export async function previewSubmission(who: Identity, spec: EnsembleSpec, sampl
   const preview: SubmissionPreview = {
     points: points.length, runs: runs.length, replicas: spec.replicas,
     seeds: runs.slice(0, sampleSize).map((r) => ({ ...r, params: points[r.pointIndex].params })),
-    coreHoursPerRun: perRun, coreHoursNeeded: needed, allocation: null, cluster: null, cap: null, ok: false, problems: [],
+    coreHoursPerRun: perRun, coreHoursNeeded: needed, allocation: null, cluster: null, cap: null, explanation: null, warnings: [], ok: false, problems: [],
   };
   try {
     const placement = await resolvePlacement(who, spec);
-    const funds = await checkFunds(placement.allocation, who.userId, needed);
+    const funds = await checkFunds(placement.allocation, who.userId, needed, { clusterId: placement.cluster.id });
     preview.allocation = { id: placement.allocation.id, name: placement.allocation.name, available: funds.available };
     preview.cluster = { id: placement.cluster.id, name: placement.cluster.name };
     preview.cap = funds.cap;
+    preview.explanation = funds.explanation;
+    preview.warnings = funds.warnings;
     preview.problems.push(...funds.problems.map((p) => ({ code: p.code, message: p.message })));
   } catch (err) {
     if (!(err instanceof AppError) || err.code === "forbidden") throw err;

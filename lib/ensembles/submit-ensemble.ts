@@ -29,7 +29,7 @@ export async function submitEnsemble(audit: AuditSource, who: Identity, spec: En
   const m = db();
   return m.sequelize.transaction(async (transaction) => {
     const { sampler, allocation, cluster } = await resolvePlacement(who, spec, transaction);
-    assertFunds(await checkFunds(allocation, who.userId, needed, { transaction, lock: true }));
+    assertFunds(await checkFunds(allocation, who.userId, needed, { transaction, lock: true, clusterId: cluster.id }));
 
     const ensemble = await m.Ensemble.create({
       name: spec.name.trim(), description: spec.description ?? null, ownerId: who.userId, groupId: allocation.groupId,

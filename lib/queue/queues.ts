@@ -5,7 +5,7 @@ import type PgBoss from "pg-boss";
 /** Every queue the project uses (the contract's job names). */
 export const QUEUE_NAMES = [
   "dispatch-runs", "poll-clusters", "collect-run", "cancel-runs", "send-mail", "failure-digest", "check-allocation",
-  "verify-manuscript", "replay-run",
+  "verify-manuscript", "replay-run", "allocation-digest",
 ] as const;
 
 export type QueueName = (typeof QUEUE_NAMES)[number];
@@ -27,6 +27,7 @@ export const QUEUE_POLICY: Record<QueueName, PgBoss.QueuePolicy> = {
   "check-allocation": "short",
   "verify-manuscript": "standard",
   "replay-run": "standard",
+  "allocation-digest": "short",
 };
 
 /** The policy a queue is created with (unknown names get pg-boss's standard policy). */

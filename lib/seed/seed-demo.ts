@@ -5,6 +5,7 @@ import { hashPassword } from "../auth/passwords";
 import { sealSecret } from "../crypto/secret-box";
 import { SAMPLER_CATALOG } from "../samplers/schemas";
 import { DEMO_ALLOCATION, DEMO_CLUSTER, DEMO_GROUP, DEMO_PEOPLE } from "./demo-scenario";
+import { seedAllocationHistory } from "./demo-allocation-history";
 
 /** What the fake cluster needs from the seed and gives back (its host key, the app's key pair). */
 export type FakeClusterLink = {
@@ -48,6 +49,8 @@ export async function seedDemo(link: FakeClusterLink): Promise<{ created: string
       await m.LedgerEntry.create({ allocationId: alloc.id, kind: "grant", coreHours: DEMO_ALLOCATION.grantCoreHours, userId: coordinator?.id ?? null, note: "demo grant for the 2026–27 period" }, { transaction });
       created.push(`allocation ${alloc.name} with a grant of ${DEMO_ALLOCATION.grantCoreHours} core-hours`);
     }
+    const idOf = async (role: string) => (await m.User.findOne({ where: { email: DEMO_PEOPLE.find((p) => p.role === role)!.email }, transaction }))?.id ?? null;
+    created.push(...await seedAllocationHistory(m, group.id, { coordinatorId: await idOf("coordinator"), piId: await idOf("pi"), researcherId: await idOf("researcher") }, transaction));
     const existing = await m.Cluster.findOne({ where: { name: DEMO_CLUSTER.name }, transaction });
     if (!existing) {
       await m.Cluster.create({

@@ -17,6 +17,7 @@ import { transitionRun } from "@/lib/runs/transition-run";
 import { db } from "@/models";
 import type { Role } from "@/lib/auth/roles";
 import { MANUSCRIPT_ACTIONS, MANUSCRIPT_ROUTES } from "../provenance/matrix-rows";
+import { ALLOCATION_ACTIONS, ALLOCATION_ROUTES } from "../allocations/matrix-rows";
 
 type Expect = Partial<Record<Role | "anonymous", number | { member: number; outsider: number }>>;
 type Fx = Awaited<ReturnType<typeof makeMatrixPeople>>;
@@ -48,6 +49,8 @@ export const ROUTES: RouteRow[] = [
   ...CLUSTER_ROUTES,
   { file: "app/api/v1/groups/route.ts", method: "GET", path: () => "/api/v1/groups", expect: ALL(200) },
   { file: "app/api/v1/allocations/route.ts", method: "GET", path: () => "/api/v1/allocations", expect: ALL(200) },
+  // allocation lifecycle and usage (allocations engineer): rows in tests/integration/allocations/matrix-rows.ts
+  ...ALLOCATION_ROUTES,
   { file: "app/api/v1/overview/route.ts", method: "GET", path: () => "/api/v1/overview", expect: ALL(200) },
   { file: "app/api/v1/tokens/route.ts", method: "GET", path: () => "/api/v1/tokens", expect: ONLY(["researcher", "pi", "coordinator", "admin"], 200) },
   { file: "app/api/v1/tokens/route.ts", method: "POST", path: () => "/api/v1/tokens", body: () => ({ name: "matrix" }), expect: ONLY(["researcher", "pi", "coordinator", "admin"], 201) },
@@ -124,6 +127,7 @@ const ACTIONS: ActionRow[] = [
   { file: "app/(app)/people/actions/update-person.ts", def: peopleActions.updatePersonAction, input: async () => ({ id: await throwawayUser(), change: { name: "Changed" } }), expect: ONLY(["admin"], 200) },
   { file: "app/(app)/people/actions/set-membership.ts", def: peopleActions.setMembershipAction, input: async (fx) => ({ userId: await throwawayUser(), groupId: fx.groupA.id, member: true }), expect: ONLY(["admin"], 200) },
   ...CLUSTER_ACTIONS,
+  ...ALLOCATION_ACTIONS,
   // ensembles: preview needs a submitting role; submit of an invalid spec passes the guard and is refused by parseSpec (422)
   { file: "app/(app)/ensembles/actions/preview-ensemble.ts", def: ensembleActions.previewEnsembleAction, input: () => ({ spec: matrixSpec() }), expect: ONLY(["researcher", "pi", "admin"], 200) },
   { file: "app/(app)/ensembles/actions/submit-ensemble.ts", def: ensembleActions.submitEnsembleAction, input: () => ({ spec: { ...matrixSpec(), replicas: 0 } }), expect: ONLY(["researcher", "pi", "admin"], 422) },
