@@ -15,7 +15,9 @@ export default async function AppLayout({ children }: { children: React.ReactNod
     { href: "/archive", label: "Archive" },
     { href: "/manuscripts", label: "Manuscripts" },
     { href: "/allocations", label: "Allocations" },
+    { href: "/planner", label: "Planner" },
     { href: "/clusters", label: "Clusters" },
+    ...(who.role === "pi" || who.role === "admin" ? [{ href: "/audit", label: "Audit" }] : []),
     ...(who.role === "admin" ? [{ href: "/people", label: "People" }, { href: "/mailbox", label: "Mailbox" }] : []),
   ];
   return (
