@@ -8,6 +8,7 @@ import { ExplorerTable } from "./estimates-table";
 import { PlotPanel } from "./plot-panel";
 import { ExportLinks } from "./export-links";
 import { SaveView } from "./save-view";
+import { AddToManuscript } from "@/components/manuscripts/add-to-manuscript";
 import { EmptyExplorer } from "./empty-explorer";
 import { choicesFor, effectiveSampler, type ExplorerOptions } from "./explorer-options";
 
@@ -33,6 +34,7 @@ export function ExplorerView({ options }: { options: ExplorerOptions }) {
         <ExplorerTable data={data} params={params} get={get} set={set} isPending={isPending} onClear={clear}
           toolbar={<>
             <SaveView query={data?.query} plot={plot} />
+            <AddToManuscript query={data?.query} plot={plot} />
             <span className="mx-2 h-5 border-l border-line" aria-hidden />
             <ExportLinks base="/api/v1/estimates" query={tableQuery} what="table" testId="table-export" />
           </>} />

@@ -1,7 +1,7 @@
 // Server-action definitions of the manuscripts pages (the "use server" files in app/(app)/manuscripts/actions call these).
 import { defineAction } from "../auth/action";
 import { PIS, RESEARCHERS } from "../auth/roles";
-import { addExhibit, createManuscript } from "../manuscripts/edit-manuscript";
+import { addCollaborator, addExhibit, createManuscript } from "../manuscripts/edit-manuscript";
 import { manuscriptTarget } from "../manuscripts/access";
 import { exhibitBodySchema, exhibitFromBody, type ExhibitBody } from "../manuscripts/exhibit-from-view";
 import { freezeManuscript, unfreezeManuscript } from "../manuscripts/freeze-manuscript";
@@ -52,3 +52,11 @@ export const verifyManuscriptAction = defineAction({
   run: async (i: { id: string }, { who, audit }) => ({ verificationId: await requestVerification(audit, who, i.id) }),
 });
 
+
+// The creator or a PI leading the group adds a researcher of the group; addCollaborator enforces who and whom.
+export const addCollaboratorAction = defineAction({
+  name: "manuscripts.addCollaborator",
+  schema: { type: "object", additionalProperties: false, required: ["id", "userId"], properties: { id: { type: "string", format: "uuid" }, userId: { type: "string", format: "uuid" } } },
+  policy: { roles: PIS, ...onManuscript },
+  run: async (i: { id: string; userId: string }, { who, audit }) => { await addCollaborator(audit, who, i.id, i.userId); return { userId: i.userId }; },
+});

@@ -17,6 +17,7 @@ import { transitionRun } from "@/lib/runs/transition-run";
 import { db } from "@/models";
 import type { Role } from "@/lib/auth/roles";
 import { MANUSCRIPT_ACTIONS, MANUSCRIPT_ROUTES } from "../provenance/matrix-rows";
+import { MANUSCRIPT_UI_ACTIONS } from "../manuscripts/matrix-rows";
 import { ALLOCATION_ACTIONS, ALLOCATION_ROUTES } from "../allocations/matrix-rows";
 
 type Expect = Partial<Record<Role | "anonymous", number | { member: number; outsider: number }>>;
@@ -135,6 +136,7 @@ const ACTIONS: ActionRow[] = [
   { file: "app/(app)/ensembles/actions/cancel-ensemble.ts", def: ensembleActions.cancelEnsembleAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, false)).id }), expect: ACT_ON_A },
   { file: "app/(app)/ensembles/actions/resubmit-failed.ts", def: ensembleActions.resubmitFailedAction, input: async (fx) => ({ id: (await matrixEnsemble(fx, true)).id }), expect: ACT_ON_A },
   ...MANUSCRIPT_ACTIONS,
+  ...MANUSCRIPT_UI_ACTIONS,
 ];
 
 const want = (e: Expect, p: Person | null): number | undefined => {
