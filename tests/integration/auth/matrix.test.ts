@@ -19,6 +19,7 @@ import type { Role } from "@/lib/auth/roles";
 import { MANUSCRIPT_ACTIONS, MANUSCRIPT_ROUTES } from "../provenance/matrix-rows";
 import { MANUSCRIPT_UI_ACTIONS } from "../manuscripts/matrix-rows";
 import { ALLOCATION_ACTIONS, ALLOCATION_ROUTES } from "../allocations/matrix-rows";
+import { PLANNER_ROUTES } from "../planner/matrix-rows";
 
 type Expect = Partial<Record<Role | "anonymous", number | { member: number; outsider: number }>>;
 type Fx = Awaited<ReturnType<typeof makeMatrixPeople>>;
@@ -93,6 +94,8 @@ export const ROUTES: RouteRow[] = [
   { file: "app/api/v1/views/[id]/route.ts", method: "GET", path: async (fx) => `/api/v1/views/${await matrixViewId(fx)}`, expect: { anonymous: 401, viewer: { member: 200, outsider: 404 }, researcher: { member: 200, outsider: 404 }, pi: { member: 200, outsider: 404 }, coordinator: 200, admin: 200 } },
   // manuscripts, provenance, audit (provenance engineer): rows in tests/integration/provenance/matrix-rows.ts
   ...MANUSCRIPT_ROUTES,
+  // planner (planner engineer): rows in tests/integration/planner/matrix-rows.ts
+  ...PLANNER_ROUTES,
 ];
 
 // A tiny valid ising2d spec for the ensemble actions (placement problems are listed by preview, not thrown).
