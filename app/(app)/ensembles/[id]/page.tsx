@@ -8,6 +8,7 @@ import { ensembleTarget } from "@/lib/ensembles/ensemble-target";
 import { ensembleDetail } from "@/lib/ensembles/ensemble-detail";
 import { PageHeader } from "@/components/ui/page-header";
 import { EnsembleView } from "@/components/ensembles/ensemble-view";
+import { PlanOutcomeCard } from "@/components/planner/plan-outcome-card";
 import type { EnsembleDetail } from "@/lib/hooks/use-ensemble";
 
 export const metadata = { title: "Ensemble" };
@@ -27,6 +28,7 @@ export default async function EnsemblePage({ params }: { params: Promise<{ id: s
       <PageHeader title={detail.name} purpose={detail.description || "One sampler at many parameter points: every run's state, live, and what the ensemble spent."}
         actions={<Link href="/ensembles" className="text-sm text-accent hover:underline self-center">← all ensembles</Link>} />
       <EnsembleView initial={detail} canAct={canAct} />
+      <PlanOutcomeCard who={who} ensembleId={id} tags={detail.tags ?? []} />
     </>
   );
 }
