@@ -81,6 +81,21 @@ describe("provenance and audit in the browser", () => {
     expect(doc.activity[`run:${runId}`]).toBeDefined();
   }, 30_000);
 
+  it("the ensemble's provenance page draws both chains and their point estimates", async () => {
+    await page.getByRole("link", { name: "its ensemble's provenance →" }).click();
+    await page.getByRole("heading", { name: `Provenance of ${spec.name}` }).waitFor();
+    const graph = page.getByTestId("prov-graph");
+    expect(await graph.locator(`[data-kind="activity"][data-node^="run:"]`).count()).toBe(2);
+    expect(await graph.locator(`a[href^="/provenance/estimates/"]`).count()).toBeGreaterThanOrEqual(7); // a point estimate per observable
+    expect(await page.locator(`[data-testid=chain-step][data-id^="run:"]`).count()).toBe(2);
+    // the long chain folds each run's analyses into one line that opens
+    expect(await page.getByTestId("chain-group").count()).toBe(3); // two runs' analyses and the point combinations
+    await page.getByTestId("chain-group").first().locator("summary").click();
+    await page.getByTestId("chain-group").first().getByTestId("chain-step").first().waitFor();
+    await shot(page, "provenance-ensemble");
+    await graph.screenshot({ path: `${shotsDir}/provenance-ensemble-graph.png` });
+  }, 30_000);
+
   it("the Audit page lists the replay; filtering by action keeps only replay entries", async () => {
     await page.getByRole("link", { name: "Audit" }).click();
     await page.getByRole("heading", { name: "Audit" }).waitFor();
