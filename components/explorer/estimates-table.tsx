@@ -3,6 +3,7 @@ import { useMemo } from "react";
 import { flexRender, getCoreRowModel, useReactTable, type SortingState, type VisibilityState } from "@tanstack/react-table";
 import type { ExplorerPage } from "@/lib/hooks/use-explorer";
 import { Pagination } from "@/components/ui/pagination";
+import { COUNT_CAP } from "@/lib/explorer/count-cap";
 import { BASE_COLUMNS, DEFAULT_VISIBLE, paramColumn } from "./table-columns";
 import { ColumnChooser, useHiddenColumns } from "./column-chooser";
 
@@ -71,6 +72,11 @@ export function ExplorerTable({ data, params, get, set, isPending, onClear, tool
         </table>
       </div>
       {data ? <Pagination page={data.page} pageSize={data.pageSize} total={data.total} onPage={(p) => set({ page: p })} onPageSize={(n) => set({ pageSize: n, page: null })} /> : null}
+      {data?.totalEstimated ? (
+        <p className="pt-1 text-xs text-ink-soft" data-testid="count-estimated">
+          About {data.total.toLocaleString("en-GB")} estimates match: beyond {COUNT_CAP.toLocaleString("en-GB")} the count is the database&apos;s estimate, not an exact count. Narrow the filters for an exact one.
+        </p>
+      ) : null}
     </div>
   );
 }

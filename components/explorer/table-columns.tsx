@@ -19,7 +19,7 @@ export const BASE_COLUMNS: Col[] = [
     header: "Estimate", meta: { numeric: true },
     cell: (c) => <span className="font-medium" title={`mean ${c.row.original.mean} ± ${c.row.original.error}`} data-testid="estimate">{concise(c.row.original.mean, c.row.original.error)}</span>,
   }),
-  col.accessor("tauInt", { header: "τ_int", meta: { numeric: true, keepCase: true }, cell: (c) => <span data-testid="tau" title={c.row.original.scope === "point" ? "replicas combined: each run has its own τ_int (scope: single runs)" : undefined}>{tau(c.row.original)}</span> }),
+  col.accessor("tauInt", { header: "τ_int", meta: { numeric: true, keepCase: true }, cell: (c) => <span data-testid="tau" title={c.row.original.scope === "point" ? (c.row.original.tauInt === null ? "no τ_int: at least one replica's analysis gave none (see scope: single runs)" : "N-weighted mean of the replicas' τ_int (each run's own: scope single runs)") : undefined}>{tau(c.row.original)}</span> }),
   col.accessor("error", { header: "Error", meta: { numeric: true }, cell: (c) => formatPlain(c.getValue() as number, 3) }),
   col.accessor("n", { header: "N", meta: { numeric: true }, cell: (c) => (c.getValue() as number).toLocaleString("en-GB") }),
   col.accessor((r) => r.ensemble.name, {

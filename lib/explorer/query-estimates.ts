@@ -3,7 +3,8 @@ import "server-only";
 import { QueryTypes } from "sequelize";
 import type { Identity } from "@/lib/auth/identity";
 import { db } from "@/models";
-import { buildEstimateQuery } from "./build-query";
+import { allIds, buildEstimateQuery, pageIds, type BuiltQuery } from "./build-query";
+import { COUNT_CAP } from "./count-cap";
 import type { ExplorerQuery } from "./query";
 
 /** One row of the explorer table (and of its exports). */
@@ -15,11 +16,13 @@ export type ExplorerRow = {
   owner: { id: string; name: string }; groupId: string; pointId: string; pointIndex: number; runId: string | null; replica: number | null;
 };
 
-/** A page of rows and the total count. */
-export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number; totalCapped: boolean };
+/**
+ * A page of rows and the count of all matching rows: exact up to COUNT_CAP; beyond it `total` is the
+ * planner's estimate from table statistics (`totalEstimated`; the UI says "about N").
+ */
+export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number; totalCapped: boolean; totalEstimated: boolean };
 
-/** Counting stops here: an exact count of a huge result costs a full scan (bench/explorer-scale.ts), a pager needs no more. */
-export const COUNT_CAP = 10_000;
+export { COUNT_CAP };
 
 const SELECT = `SELECT es.id, es.scope, es.observable, es.mean, es.error, es.tau_int, es.tau_int_error, es.n, es.therm_cut, es."window",
   es.method, es.analysis_version, es.version, es.chi2dof, es.flagged, es.params, es.created_at, es.ensemble_id, e.name AS ensemble_name,
@@ -40,23 +43,50 @@ function toRow(r: Record<string, unknown>): ExplorerRow {
   };
 }
 
-/** One page of current estimates matching `q` that `who` may read, in the query's order. */
-export async function queryEstimates(who: Identity, q: ExplorerQuery): Promise<ExplorerPage> {
-  const b = await buildEstimateQuery(who, q);
-  const { sequelize } = db();
-  const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM (SELECT 1 ${b.from} ${b.where} LIMIT ${COUNT_CAP + 1}) c`,
-    { type: QueryTypes.SELECT, bind: b.whereBind });
-  const rows = await sequelize.query<Record<string, unknown>>(
-    `${SELECT} ${b.from} ${b.where} ${b.orderBy} LIMIT ${q.pageSize} OFFSET ${(q.page - 1) * q.pageSize}`,
-    { type: QueryTypes.SELECT, bind: b.bind },
+/** Display columns of the given estimates, in the order of `ids` (at most a page or an export's worth). */
+async function rowsOf(ids: string[]): Promise<ExplorerRow[]> {
+  if (ids.length === 0) return [];
+  const rows = await db().sequelize.query<Record<string, unknown>>(
+    `${SELECT} FROM unnest($1::uuid[]) WITH ORDINALITY AS page(id, ord) JOIN estimates es ON es.id = page.id
+      JOIN ensembles e ON e.id = es.ensemble_id JOIN samplers s ON s.id = e.sampler_id JOIN users u ON u.id = e.owner_id
+      JOIN parameter_points p ON p.id = es.point_id LEFT JOIN runs r ON r.id = es.run_id ORDER BY page.ord`,
+    { type: QueryTypes.SELECT, bind: [ids] },
   );
-  return { rows: rows.map(toRow), total: Math.min(Number(total), COUNT_CAP), totalCapped: Number(total) > COUNT_CAP, page: q.page, pageSize: q.pageSize };
+  return rows.map(toRow);
+}
+
+/** The planner's row estimate for the query's WHERE (EXPLAIN only plans; nothing is read). */
+async function estimatedCount(b: BuiltQuery): Promise<number> {
+  const [plan] = await db().sequelize.query<{ "QUERY PLAN": [{ Plan: { "Plan Rows": number } }] }>(
+    `EXPLAIN (FORMAT JSON) SELECT 1 FROM explorer.estimate_rows x WHERE ${b.where}`, { type: QueryTypes.SELECT, bind: b.whereBind });
+  return Math.round(plan["QUERY PLAN"][0].Plan["Plan Rows"]);
+}
+
+/** Two significant figures: an estimate should not look exact. */
+const roughly = (n: number) => { const k = 10 ** Math.max(0, Math.floor(Math.log10(Math.max(1, n))) - 1); return Math.round(n / k) * k; };
+
+/**
+ * Matching rows: when the planner expects far more than COUNT_CAP the exact count is skipped (it
+ * would be capped anyway and costs a scan of the matches); otherwise counted exactly up to the cap.
+ */
+async function countRows(b: BuiltQuery, cap: number): Promise<{ total: number; totalCapped: boolean; totalEstimated: boolean }> {
+  const estimate = await estimatedCount(b);
+  if (estimate > 5 * cap) return { total: roughly(estimate), totalCapped: true, totalEstimated: true };
+  const [{ total }] = await db().sequelize.query<{ total: string }>(
+    `SELECT count(*) AS total FROM (SELECT 1 FROM explorer.estimate_rows x WHERE ${b.where} LIMIT ${Math.trunc(cap) + 1}) c`, { type: QueryTypes.SELECT, bind: b.whereBind });
+  if (Number(total) <= cap) return { total: Number(total), totalCapped: false, totalEstimated: false };
+  return { total: roughly(Math.max(estimate, cap + 1)), totalCapped: true, totalEstimated: true };
+}
+
+/** One page of current estimates matching `q` that `who` may read, in the query's order. */
+export async function queryEstimates(who: Identity, q: ExplorerQuery, options: { countCap?: number } = {}): Promise<ExplorerPage> {
+  const b = await buildEstimateQuery(who, q);
+  const [count, ids] = await Promise.all([countRows(b, options.countCap ?? COUNT_CAP), pageIds(b, (q.page - 1) * q.pageSize, q.pageSize)]);
+  return { rows: await rowsOf(ids), ...count, page: q.page, pageSize: q.pageSize };
 }
 
 /** Every matching row (up to `limit`) in the table's order: what exports and plots read. */
 export async function allEstimates(who: Identity, q: ExplorerQuery, limit: number): Promise<{ rows: ExplorerRow[]; truncated: boolean }> {
-  const b = await buildEstimateQuery(who, q);
-  const rows = await db().sequelize.query<Record<string, unknown>>(`${SELECT} ${b.from} ${b.where} ${b.orderBy} LIMIT ${limit + 1}`,
-    { type: QueryTypes.SELECT, bind: b.bind });
-  return { rows: rows.slice(0, limit).map(toRow), truncated: rows.length > limit };
+  const ids = await allIds(await buildEstimateQuery(who, q), limit + 1);
+  return { rows: await rowsOf(ids.slice(0, limit)), truncated: ids.length > limit };
 }

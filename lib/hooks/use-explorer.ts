@@ -6,7 +6,8 @@ import type { ExplorerRow as Row } from "@/lib/explorer/query-estimates";
 /** One row of GET /api/v1/estimates (type-only import: the lib module stays on the server). */
 export type ExplorerRow = Row;
 /** A table page plus the query as the server parsed it (what a saved view stores). */
-export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number; query: Record<string, unknown>; queryString: string };
+export type ExplorerPage = { rows: ExplorerRow[]; total: number; page: number; pageSize: number; query: Record<string, unknown>; queryString: string;
+  /** `total` is the database's estimate (beyond the exact-count cap): shown as "about N". */ totalEstimated?: boolean };
 
 /** One point of a plotted line, with per-replica points when the query is over point estimates. */
 export type PlotPoint = { x: number; mean: number; error: number; tauInt: number | null; estimateId: string; runs?: { x: number; mean: number; error: number; runId: string }[] };
