@@ -19,8 +19,11 @@ export type BundleOutcome =
   | { bundle: string; status: "already-imported"; importId: string; runId: string | null }
   | { bundle: string; status: "refused"; reason: string; importId: string | null; file?: string; line?: number; field?: string };
 
-/** Who deposits into which group, and how the bundle is named in answers and on the Import row. */
-export type DepositInput = { dir: string; label: string; originalNames: string[]; groupId: string; uploaderId: string; audit: AuditSource };
+/** Steps of one deposit, in order, as progress reports name them. */
+export type BundleStage = "checking" | "importing" | "estimates";
+
+/** Who deposits into which group, how the bundle is named in answers and on the Import row, and who hears of each step. */
+export type DepositInput = { dir: string; label: string; originalNames: string[]; groupId: string; uploaderId: string; audit: AuditSource; onStage?: (stage: BundleStage) => void };
 
 class Superseded extends Error {}
 
@@ -34,16 +37,20 @@ class Superseded extends Error {}
 export async function depositBundle(input: DepositInput): Promise<BundleOutcome> {
   const m = modelsFor();
   const { dir, label } = input;
+  const stage = (st: BundleStage) => input.onStage?.(st);
   let bundleHash: string | null = null;
   try {
+    stage("checking");
     bundleHash = await bundleHashOf(dir);
     const known = await m.Import.findOne({ where: { bundleHash, state: "accepted" } });
     if (known) return { bundle: label, status: "already-imported", importId: known.id, runId: known.runId };
     const { sampler, bundle } = await preValidate(dir);
     return await m.sequelize.transaction(async (transaction) => {
+      stage("importing");
       const rows = await createArchiveRun({ groupId: input.groupId, ownerId: input.uploaderId, sampler, manifest: bundle.manifest }, transaction);
       const result = await importBundle({ runId: rows.runId, dir, source: "upload", uploadedById: input.uploaderId, originalNames: input.originalNames }, { transaction });
       if (result.status !== "imported") throw new Superseded();
+      stage("estimates");
       await computePointEstimates(rows.pointId, { transaction });
       await recordAudit(input.audit, "import.upload", { type: "run", id: rows.runId, groupId: input.groupId },
         { importId: result.importId, bundleHash, originalNames: input.originalNames.slice(0, 50) }, transaction);

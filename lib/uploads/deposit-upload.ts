@@ -6,7 +6,7 @@ import type { AuditSource } from "@/lib/audit/record-audit";
 import type { Identity } from "@/lib/auth/identity";
 import { AppError } from "@/lib/errors";
 import { UnpackBudget } from "./budget";
-import { depositBundle, type BundleOutcome } from "./deposit-bundle";
+import { depositBundle, type BundleOutcome, type BundleStage } from "./deposit-bundle";
 import { findBundles, listFiles } from "./find-bundles";
 import { uploadLimits, type UploadLimits } from "./limits";
 import { makeUploadRoot, receiveUpload, type ReceivedFile } from "./receive-upload";
@@ -18,11 +18,31 @@ import { unpackZip } from "./unpack-zip";
 /** The answer to one upload: an outcome per bundle (or per archive that could not be unpacked) and the counts. */
 export type UploadResult = { groupId: string; bundles: BundleOutcome[]; accepted: number; alreadyImported: number; refused: number };
 
+/** What the upload is doing, reported once per step (POST /api/v1/imports streams these as NDJSON lines). */
+export type UploadProgress =
+  | { type: "received"; bytes: number; bundles: number; refusedEarly: number }
+  | { type: "bundle"; index: number; total: number; bundle: string; stage: BundleStage }
+  | { type: "outcome"; index: number; total: number; outcome: BundleOutcome };
+
+/** A received, unpacked upload whose bundles are found but not yet deposited; `deposit` runs them and removes the folder. */
+export type PreparedUpload = { groupId: string; bundles: number; deposit: (onProgress?: (p: UploadProgress) => void) => Promise<UploadResult>; discard: () => void };
+
 /** Receive the upload in `req` as `who` and deposit every bundle in it (see docs/uploads.md). */
-export async function depositUpload(req: Request, who: Identity, audit: AuditSource, limits: UploadLimits = uploadLimits()): Promise<UploadResult> {
+export async function depositUpload(req: Request, who: Identity, audit: AuditSource, limits: UploadLimits = uploadLimits(),
+  onProgress?: (p: UploadProgress) => void): Promise<UploadResult> {
+  return (await prepareUpload(req, who, audit, limits)).deposit(onProgress);
+}
+
+/**
+ * Receive, unpack and find the bundles (every upload-level refusal — size, type, group, empty — is
+ * thrown here, before any answer has started), leaving the deposits to `deposit`.
+ */
+export async function prepareUpload(req: Request, who: Identity, audit: AuditSource, limits: UploadLimits = uploadLimits()): Promise<PreparedUpload> {
   const root = makeUploadRoot(limits);
+  const discard = () => fs.rmSync(root, { recursive: true, force: true });
   try {
     const received = await receiveUpload(req, root, limits);
+    const receivedBytes = received.files.reduce((a, f) => a + f.bytes, 0);
     if (received.files.length === 0) throw new AppError("invalid", "the upload is empty: send the files of a result bundle, or one .zip or .tar.gz of bundles");
     const groupId = await resolveUploadGroup(who, received.fields.group ?? new URL(req.url).searchParams.get("group"));
     const bundles: BundleOutcome[] = [];
@@ -66,19 +86,38 @@ export async function depositUpload(req: Request, who: Identity, audit: AuditSou
       }
       sources.push({ dir, prefix: null });
     }
+    const work: { dir: string; label: string; names: string[] }[] = [];
     for (const source of sources) {
       const found = findBundles(source.dir);
       if (found.length === 0 && source.prefix) bundles.push(refusedUpload(source.prefix, `${source.prefix}: holds no files`));
       for (const b of found) {
         const names = listFiles(b.dir).map((n) => joinName(source.prefix, b.rel, n));
-        const label = source.prefix ? `${source.prefix}:${b.rel || "."}` : b.rel || "uploaded files";
-        bundles.push(await depositBundle({ dir: b.dir, label, originalNames: names, groupId, uploaderId: who.userId, audit }));
+        work.push({ dir: b.dir, label: source.prefix ? `${source.prefix}:${b.rel || "."}` : b.rel || "uploaded files", names });
       }
     }
-    const count = (s: BundleOutcome["status"]) => bundles.filter((b) => b.status === s).length;
-    return { groupId, bundles, accepted: count("accepted"), alreadyImported: count("already-imported"), refused: count("refused") };
-  } finally {
-    fs.rmSync(root, { recursive: true, force: true });
+    const early = bundles.length;
+    const total = early + work.length;
+    const deposit = async (onProgress: (p: UploadProgress) => void = () => {}): Promise<UploadResult> => {
+      try {
+        onProgress({ type: "received", bytes: receivedBytes, bundles: total, refusedEarly: early });
+        for (const [i, o] of bundles.entries()) onProgress({ type: "outcome", index: i, total, outcome: o });
+        for (const [k, w] of work.entries()) {
+          const index = early + k;
+          const outcome = await depositBundle({ dir: w.dir, label: w.label, originalNames: w.names, groupId, uploaderId: who.userId, audit,
+            onStage: (stage) => onProgress({ type: "bundle", index, total, bundle: w.label, stage }) });
+          bundles.push(outcome);
+          onProgress({ type: "outcome", index, total, outcome });
+        }
+        const count = (st: BundleOutcome["status"]) => bundles.filter((b) => b.status === st).length;
+        return { groupId, bundles, accepted: count("accepted"), alreadyImported: count("already-imported"), refused: count("refused") };
+      } finally {
+        discard();
+      }
+    };
+    return { groupId, bundles: total, deposit, discard };
+  } catch (err) {
+    discard();
+    throw err;
   }
 }
 

@@ -2,7 +2,8 @@
 // POST /api/v1/imports – upload result bundles (multipart files of one bundle, or a .zip / .tar.gz of bundles); an outcome per bundle
 import { withAuth } from "@/lib/auth/guard";
 import { ANY, RESEARCHERS } from "@/lib/auth/roles";
-import { depositUpload } from "@/lib/uploads/deposit-upload";
+import { prepareUpload } from "@/lib/uploads/deposit-upload";
+import { progressStream } from "@/lib/uploads/progress-stream";
 import { importQueryFrom, listImports } from "@/lib/uploads/list-imports";
 
 export const dynamic = "force-dynamic";
@@ -11,7 +12,11 @@ export const runtime = "nodejs";
 export const GET = withAuth({ roles: ANY }, async (req, { who }) =>
   Response.json(await listImports(who, importQueryFrom(new URL(req.url).searchParams))));
 
-export const POST = withAuth({ roles: RESEARCHERS }, async (req, { who, audit }) => {
-  const data = await depositUpload(req, who, audit);
+// With `Accept: application/x-ndjson` the answer streams one progress line per step, then the result
+// line (docs/uploads.md); without it, one JSON answer once every bundle is done (API clients, the CLI).
+export const POST = withAuth({ roles: RESEARCHERS }, async (req, { who, audit, log }) => {
+  const prepared = await prepareUpload(req, who, audit);
+  if ((req.headers.get("accept") ?? "").includes("application/x-ndjson")) return progressStream(prepared, log);
+  const data = await prepared.deposit();
   return Response.json({ data }, { status: data.accepted > 0 ? 201 : 200 });
 });
