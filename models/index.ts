@@ -10,6 +10,7 @@ import { SignInAttempt, initSignInAttempt } from "./sign-in-attempt";
 import { AuditEntry, initAuditEntry } from "./audit-entry";
 import { Allocation, initAllocation } from "./allocation";
 import { LedgerEntry, initLedgerEntry } from "./ledger-entry";
+import { AllocationCap, AllocationCapNotice, AllocationStateChange, initAllocationCap, initAllocationCapNotice, initAllocationStateChange } from "./allocation-history";
 import { Cluster, initCluster } from "./cluster";
 import { Sampler, initSampler } from "./sampler";
 import { Ensemble, initEnsemble } from "./ensemble";
@@ -34,6 +35,7 @@ export * from "./sign-in-attempt";
 export * from "./audit-entry";
 export * from "./allocation";
 export * from "./ledger-entry";
+export * from "./allocation-history";
 export * from "./cluster";
 export * from "./sampler";
 export * from "./ensemble";
@@ -59,6 +61,9 @@ const definitions = {
   AuditEntry: [AuditEntry, initAuditEntry],
   Allocation: [Allocation, initAllocation],
   LedgerEntry: [LedgerEntry, initLedgerEntry],
+  AllocationStateChange: [AllocationStateChange, initAllocationStateChange],
+  AllocationCap: [AllocationCap, initAllocationCap],
+  AllocationCapNotice: [AllocationCapNotice, initAllocationCapNotice],
   Cluster: [Cluster, initCluster],
   Sampler: [Sampler, initSampler],
   Ensemble: [Ensemble, initEnsemble],

@@ -68,14 +68,14 @@ export function PersonUsage({ rows }: { rows: PersonRow[] }) {
   if (rows.length === 0) return <p className="text-sm text-ink-soft">Nobody has used this allocation yet.</p>;
   const plot = rows.filter((r) => r.used > 0 || r.cap).map((r) => ({ name: r.name, charged: r.charged, held: r.held }));
   return (
-    <div className="grid lg:grid-cols-2 gap-4 items-start">
-      <SortTable data={rows} columns={personColumns} testId="usage-by-person" initial={[{ id: "used", desc: true }]} />
+    <div className="grid xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] gap-4 items-start">
+      <div className="min-w-0 overflow-x-auto"><SortTable data={rows} columns={personColumns} testId="usage-by-person" initial={[{ id: "used", desc: true }]} /></div>
       <figure aria-label="core-hours by person" data-testid="person-plot">
         <ResponsiveContainer width="100%" height={Math.max(140, 36 * plot.length + 48)}>
           <BarChart data={plot} layout="vertical" margin={{ top: 4, right: 16, bottom: 4, left: 8 }}>
             <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" horizontal={false} />
             <XAxis type="number" tick={{ fontSize: 11 }} tickFormatter={(v: number) => coreHours(v)} />
-            <YAxis type="category" dataKey="name" width={130} tick={{ fontSize: 11 }} />
+            <YAxis type="category" dataKey="name" width={150} tick={{ fontSize: 11 }} />
             <Tooltip formatter={(v, n) => [`${coreHours(Number(v))} core-h`, n]} />
             <Legend wrapperStyle={{ fontSize: 12 }} />
             <Bar dataKey="charged" stackId="u" fill="#0f6b6b" name="charged" isAnimationActive={false} />

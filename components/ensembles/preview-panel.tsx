@@ -3,6 +3,12 @@ import { coreHoursFine as coreHours } from "./core-hours";
 import type { PreviewState } from "@/lib/hooks/use-spec-preview";
 import type { SubmissionPreview } from "@/lib/ensembles/preview-submission";
 
+// Names of the admission limits (lib/ensembles/funds.ts) as the refusal headline says them.
+const LIMIT_LABEL: Record<string, string> = {
+  suspended: "a suspended allocation", closed: "a closed allocation", cluster: "the allocation's cluster",
+  allocation_balance: "the allocation's balance", person_cap: "your per-person cap", ensemble_ceiling: "the per-ensemble ceiling",
+};
+
 /** What previewSubmission answers. */
 export type SpecPreview = SubmissionPreview;
 
@@ -53,7 +59,7 @@ function PreviewFigures({ p }: { p: SpecPreview }) {
       ) : null}
       {p.warnings?.length ? <ul className="text-ink space-y-1 rounded bg-danger-soft/60 px-2 py-1" data-testid="preview-warnings">{p.warnings.map((w, k) => <li key={k}>⚠ {w}</li>)}</ul> : null}
       {p.problems.length ? (
-        <ul role="alert" className="text-danger space-y-1" data-testid="preview-refusal">{p.problems.map((x, k) => <li key={k}>{x.path ? <span className="mono text-xs text-ink-soft">{x.path} </span> : null}{x.message}</li>)}</ul>
+        <ul role="alert" className="text-danger space-y-1" data-testid="preview-refusal">{p.explanation ? <li className="font-medium" data-testid="preview-limit">Refused by {LIMIT_LABEL[p.explanation.limit] ?? p.explanation.limit}: needs {coreHours(p.explanation.needed)} core-h, {coreHours(p.explanation.free)} core-h free</li> : null}{p.problems.map((x, k) => <li key={k}>{x.path ? <span className="mono text-xs text-ink-soft">{x.path} </span> : null}{x.message}</li>)}</ul>
       ) : <p className="text-state-done" data-testid="preview-ok">● Ready to submit.</p>}
     </div>
   );

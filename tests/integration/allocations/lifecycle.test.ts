@@ -9,7 +9,7 @@ import { submitEnsemble } from "@/lib/ensembles/submit-ensemble";
 import { previewSubmission } from "@/lib/ensembles/preview-submission";
 import { stopBoss } from "@/lib/queue/boss";
 import { db } from "@/models";
-import { makeGroup, useTestDatabase } from "../../support/db";
+import { makeCluster, makeGroup, useTestDatabase } from "../../support/db";
 import { audit, isingSpec, jobs, person, registerSamplersAndCluster } from "../ensembles/fixture";
 import { finishRun, ledgerSums, refusal } from "./support";
 
@@ -88,6 +88,17 @@ describe("allocation lifecycle", () => {
     ]);
     // the history is append-only in the database too
     await expect(db().sequelize.query("UPDATE allocation_state_changes SET reason = 'x' WHERE allocation_id = $1", { bind: [id] })).rejects.toThrow();
+  });
+
+  it("an allocation for one cluster refuses submissions that go to another", async () => {
+    const group = await makeGroup();
+    const coord = await person("coordinator", null);
+    const researcher = await person("researcher", group);
+    const elsewhere = await makeCluster({ active: false });
+    const { id } = await grantAllocation(audit(coord.who), { groupId: group.id, name: "for elsewhere", periodStart: "2026-01-01", periodEnd: "2027-06-01", coreHours: 100, clusterId: elsewhere.id });
+    const refused = await refusal(submitEnsemble(audit(researcher.who), researcher.who, isingSpec()));
+    expect(refused.details).toMatchObject({ limit: "cluster", allocation: { id } });
+    expect(refused.message).toContain("is for another cluster than the one this submission goes to");
   });
 
   it("refuses a grant with a bad period or group, naming the field", async () => {

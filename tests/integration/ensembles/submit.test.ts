@@ -73,7 +73,8 @@ describe("submitEnsemble", () => {
     expect(await counts()).toEqual(before);
     const over = await previewSubmission(who, isingSpec({ replicas: 100, temps: [2.0, 2.1] }));
     expect(over.ok).toBe(false);
-    expect(over.problems[0].message).toBe('needs 200 core-hours, 100 available on allocation "' + allocation.name + '"');
+    // who to ask is part of every refusal (#8); this test database has no coordinator
+    expect(over.problems[0].message).toBe('needs 200 core-hours, 100 available on allocation "' + allocation.name + '". Ask an admin: no coordinator is registered.');
   });
 
   it("refuses an overspend with needed and available, and writes nothing (no rows, no job)", async () => {
