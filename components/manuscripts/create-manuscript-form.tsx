@@ -21,7 +21,7 @@ export function CreateManuscriptForm({ groups }: { groups: { id: string; name: s
     <form action={submit} className="grid gap-3 sm:grid-cols-4 items-end rounded-lg border border-line bg-paper-raised p-4 mb-6" aria-label="New manuscript">
       <Field label="Working title"><input name="title" required className={inputClass} /></Field>
       <Field label="Group"><select name="groupId" className={inputClass}>{groups.map((g) => <option key={g.id} value={g.id}>{g.name}</option>)}</select></Field>
-      <Field label="Target journal" hint="optional"><input name="journal" className={inputClass} /></Field>
+      <Field label="Target journal (optional)"><input name="journal" className={inputClass} /></Field>
       <div><Button type="submit" disabled={busy}>Create manuscript</Button></div>
       {error ? <p role="alert" className="sm:col-span-4 text-sm text-danger">{error}</p> : null}
     </form>

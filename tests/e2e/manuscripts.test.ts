@@ -227,6 +227,10 @@ describe("a manuscript from explorer views to a checked bundle", () => {
     expect(await page.getByTestId("unfreeze-reason").textContent()).toBe("referee asks for L = 8 as well");
     const actions = await page.getByTestId("history").locator("li").evaluateAll((els) => els.map((e) => e.getAttribute("data-action")));
     expect(actions).toEqual(["manuscript.create", "manuscript.exhibit.add", "manuscript.exhibit.add", "manuscript.freeze", "manuscript.verify", "manuscript.verified", "manuscript.unfreeze"]);
+    expect(await page.getByTestId("exhibit-verified").count()).toBe(0); // the verification spoke for the released snapshot
     await shot(page, "manuscript-unfrozen");
+    await page.goto("/manuscripts");
+    await page.getByRole("link", { name: TITLE }).waitFor();
+    await shot(page, "manuscripts-list");
   }, 30_000);
 });

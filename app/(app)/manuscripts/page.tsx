@@ -4,6 +4,7 @@ import { listManuscripts } from "@/lib/manuscripts/list-manuscripts";
 import { db } from "@/models";
 import { PageHeader } from "@/components/ui/page-header";
 import { CreateManuscriptForm } from "@/components/manuscripts/create-manuscript-form";
+import { Time } from "@/components/ui/time";
 
 export const metadata = { title: "Manuscripts" };
 export const dynamic = "force-dynamic";
@@ -19,14 +20,14 @@ export default async function ManuscriptsPage() {
       {rows.length === 0 ? (
         <p className="text-sm text-ink-soft">No manuscripts yet. A PI creates one above, adds exhibits (a saved explorer view behind each figure or table) and freezes it when the paper is submitted.</p>
       ) : (
-        <table className="w-full text-sm tabular-nums">
-          <thead className="text-left text-ink-soft"><tr><th className="py-1.5">Title</th><th>Group</th><th>Journal</th><th>Exhibits</th><th>State</th></tr></thead>
+        <table className="data" data-testid="manuscripts">
+          <thead><tr><th>Title</th><th>Group</th><th>Journal</th><th className="n">Exhibits</th><th>State</th></tr></thead>
           <tbody>
             {rows.map((r) => (
-              <tr key={r.id} className="border-t border-line">
-                <td className="py-1.5"><Link className="text-accent hover:underline" href={`/manuscripts/${r.id}`}>{r.title}</Link></td>
-                <td>{r.groupName}</td><td>{r.journal ?? "—"}</td><td>{r.exhibits}</td>
-                <td>{r.state === "frozen" ? "❄ frozen" : "✎ draft"}</td>
+              <tr key={r.id}>
+                <td><Link className="text-accent hover:underline" href={`/manuscripts/${r.id}`}>{r.title}</Link></td>
+                <td>{r.groupName}</td><td>{r.journal ?? "—"}</td><td className="n">{r.exhibits}</td>
+                <td>{r.state === "frozen" ? <>❄ frozen{r.frozenAt ? <span className="text-ink-soft"> <Time at={r.frozenAt} /></span> : null}</> : "✎ draft"}</td>
               </tr>
             ))}
           </tbody>

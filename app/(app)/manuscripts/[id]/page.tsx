@@ -34,7 +34,9 @@ export default async function ManuscriptPage({ params }: { params: Promise<{ id:
     !frozen && (leads || ms.createdBy.id === who.userId) ? collaboratorCandidates({ groupId: ms.groupId, createdById: ms.createdBy.id }, ms.collaborators.map((c) => c.id)) : [],
     ms.may.edit ? groupViews(who, ms.groupId) : [],
   ]);
-  const latest = ms.latestVerification as unknown as Verification | null;
+  // a verification speaks for the snapshot it checked: one from before the latest freeze (or of a draft) is stale
+  const v = ms.latestVerification;
+  const latest = frozen && v && ms.frozenAt && new Date(v.createdAt) >= new Date(ms.frozenAt) ? (v as unknown as Verification) : null;
   const statusOf = new Map((latest?.report?.exhibits ?? []).map((x) => [x.label, x.status as "verified" | "differs"]));
   const sum = (f: (p: (typeof ms.exhibits)[number]["preview"]) => number) => ms.exhibits.reduce((n, x) => n + f(x.preview), 0);
   // exhibits may share runs and files: the snapshot's totals count each once
