@@ -19,7 +19,7 @@ export function AddExhibitForm({ id, views }: { id: string; views: { id: string;
     const r = await addExhibit({ id, exhibit: { label: label.trim(), kind, caption: String(form.get("caption") || "") || null, viewId: String(form.get("viewId")) } });
     setBusy(false);
     if ("error" in r) setError(r.error.message);
-    else { setLabel(""); (document.getElementById("add-exhibit") as HTMLFormElement | null)?.reset(); router.refresh(); }
+    else { setLabel(""); setKind("figure"); (document.getElementById("add-exhibit") as HTMLFormElement | null)?.reset(); router.refresh(); }
   }
   if (views.length === 0) {
     return (

@@ -7,7 +7,7 @@ function what(h: HistoryEntry): React.ReactNode {
   switch (h.action) {
     case "manuscript.create": return "created the draft";
     case "manuscript.exhibit.add": return <>added exhibit <b>{String(d.label)}</b></>;
-    case "manuscript.collaborator.add": return "added an editor";
+    case "manuscript.collaborator.add": return <>added <b>{String(d.userName ?? d.userId)}</b> as an editor</>;
     case "manuscript.freeze": return <>froze it ({Object.keys((d.snapshotHashes as object) ?? {}).length} exhibits, {String(d.items ?? "?")} items locked)</>;
     case "manuscript.unfreeze": return <>unfroze it: <q data-testid="unfreeze-reason">{String(d.reason)}</q></>;
     case "manuscript.verify": return "asked for a verification";

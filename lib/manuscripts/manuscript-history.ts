@@ -16,5 +16,8 @@ export async function manuscriptHistory(id: string): Promise<HistoryEntry[]> {
      SELECT v.finished_at, 'manuscript.verified', NULL, jsonb_build_object('verificationId', v.id, 'state', v.state)
        FROM provenance.verifications v WHERE v.manuscript_id = $1::uuid AND v.finished_at IS NOT NULL
      ORDER BY at ASC`, { bind: [id], type: "SELECT" })) as HistoryEntry[];
-  return rows.map((r) => ({ ...r, at: new Date(r.at) }));
+  // an added editor is named, not shown as an id
+  const ids = [...new Set(rows.map((r) => r.detail?.userId).filter((u): u is string => typeof u === "string"))];
+  const names = new Map(ids.length ? (await m.User.findAll({ where: { id: ids }, attributes: ["id", "name"] })).map((u) => [u.id, u.name]) : []);
+  return rows.map((r) => ({ ...r, at: new Date(r.at), detail: typeof r.detail?.userId === "string" ? { ...r.detail, userName: names.get(r.detail.userId as string) ?? null } : r.detail }));
 }

@@ -22,6 +22,7 @@ const tag = crypto.randomBytes(3).toString("hex");
 const TEMPS = [2.05, 2.35, 2.65];
 const PI = { email: `pi.${tag}@ms.example`, password: "ms-pi-pass-1", name: `Imke Sorrel ${tag}` };
 const VIEWER = { email: `viewer.${tag}@ms.example`, password: "ms-viewer-pass-1", name: `Ansel Brook ${tag}` };
+const RESEARCHER = { email: `researcher.${tag}@ms.example`, password: "ms-research-pass-1", name: `Lio Farrant ${tag}` };
 const TITLE = `Energy of small Ising lattices ${tag}`;
 
 let browser: Browser;
@@ -58,7 +59,7 @@ beforeAll(async () => {
   const { context, page: a } = await newPage(browser);
   await signInAs(a, admin.email, admin.password);
   await a.getByRole("heading", { name: "Overview" }).waitFor();
-  for (const [p, role] of [[PI, "pi"], [VIEWER, "viewer"]] as const) {
+  for (const [p, role] of [[PI, "pi"], [VIEWER, "viewer"], [RESEARCHER, "researcher"]] as const) {
     const res = await a.request.post("/api/v1/people", { data: { email: p.email, name: p.name, role, password: p.password, groupIds: [groupId] } });
     expect(res.status()).toBe(201);
     if (role === "pi") {
@@ -128,6 +129,11 @@ describe("a manuscript from explorer views to a checked bundle", () => {
     const href = (await fig.getByTestId("open-in-explorer").getAttribute("href"))!;
     const sp = new URL(href, "http://x").searchParams;
     expect([sp.get("ensemble"), sp.get("observable"), sp.get("x")]).toEqual([ensembleId, "e", "T"]);
+    // editors: the group's researcher can be added, its viewer is not offered
+    const pick = page.getByLabel("Researcher to add as editor");
+    expect(await pick.locator("option").allTextContents()).toEqual([`${RESEARCHER.name} (researcher)`]);
+    await page.getByRole("button", { name: "Add editor" }).click();
+    await until("the editor listed", async () => (await page.getByTestId("collaborators").textContent())?.includes(RESEARCHER.name), 10_000, 300);
     await shot(page, "manuscript-draft");
   }, 40_000);
 
@@ -226,7 +232,7 @@ describe("a manuscript from explorer views to a checked bundle", () => {
     await until("draft again", async () => (await page.getByTestId("manuscript-state").getAttribute("data-state")) === "draft", 10_000, 300);
     expect(await page.getByTestId("unfreeze-reason").textContent()).toBe("referee asks for L = 8 as well");
     const actions = await page.getByTestId("history").locator("li").evaluateAll((els) => els.map((e) => e.getAttribute("data-action")));
-    expect(actions).toEqual(["manuscript.create", "manuscript.exhibit.add", "manuscript.exhibit.add", "manuscript.freeze", "manuscript.verify", "manuscript.verified", "manuscript.unfreeze"]);
+    expect(actions).toEqual(["manuscript.create", "manuscript.exhibit.add", "manuscript.exhibit.add", "manuscript.collaborator.add", "manuscript.freeze", "manuscript.verify", "manuscript.verified", "manuscript.unfreeze"]);
     expect(await page.getByTestId("exhibit-verified").count()).toBe(0); // the verification spoke for the released snapshot
     await shot(page, "manuscript-unfrozen");
     await page.goto("/manuscripts");

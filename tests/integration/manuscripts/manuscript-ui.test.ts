@@ -89,7 +89,10 @@ describe("drafting, freezing and the page's data", () => {
     expect(await invokeAction(actions.addExhibitAction, researcher, { id: ms.id, exhibit })).toHaveProperty("data.id");
     const mine = async (who: Identity) => (await listManuscripts(who)).find((r) => r.id === ms.id)!.mayEdit;
     expect([await mine(pi), await mine(researcher), await mine(researcher2), await mine(viewer)]).toEqual([true, true, false, false]);
-    expect((await manuscriptDetail(pi, ms.id)).collaborators.map((c) => c.id)).toEqual([researcher.userId]);
+    const d = await manuscriptDetail(pi, ms.id);
+    expect(d.collaborators.map((c) => c.id)).toEqual([researcher.userId]);
+    const added = (await db().User.findByPk(researcher.userId))!.name;
+    expect(d.history.find((h) => h.action === "manuscript.collaborator.add")?.detail).toMatchObject({ userId: researcher.userId, userName: added });
   });
 
   it("the preview counts what a freeze then snapshots; unfreezing needs a reason and the history shows it", async () => {
