@@ -12,6 +12,7 @@ import yauzl from "yauzl";
 import { launch, newPage, signInAs, shot } from "./support/browser";
 import { until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
+import { resolveArchived } from "@/lib/storage/archive-path";
 import { db } from "@/models";
 import type { Run } from "@/models";
 import { cleanupTemp, sampleBundle } from "@/tests/integration/importer/bundles";
@@ -223,6 +224,32 @@ describe("a manuscript from explorer views to a checked bundle", () => {
     await context.close();
   }, 50_000);
 
+  it("a file changed in the archive: verify names it, per exhibit, and the file is put back", async () => {
+    const d = await detail(page);
+    const f = d.exhibits[0].snapshot!.files.find((x) => /series/.test(x.path))!;
+    const row = (await db().Artifact.findByPk(f.sha256))!;
+    const file = resolveArchived(row.storagePath);
+    const bytes = fs.readFileSync(file);
+    fs.chmodSync(file, 0o644);
+    fs.writeFileSync(file, Buffer.concat([bytes, Buffer.from("\n")]));
+    try {
+      await page.reload();
+      await page.getByRole("button", { name: "Verify", exact: true }).click();
+      await until("the verification's end", async () => (await page.getByTestId("verify-result").getAttribute("data-state").catch(() => null)) === "differs", 20_000, 300);
+      // both exhibits rest on this run, so both name the file, its run and what changed
+      for (const label of ["Fig. 1", "Table 1"]) {
+        const line = page.locator(`[data-testid="verify-exhibit"][data-label="${label}"]`);
+        expect(await line.getAttribute("data-status")).toBe("differs");
+        const text = (await line.textContent())!;
+        expect(text).toContain(f.path);
+        expect(text).toContain("content changed");
+      }
+      await shot(page, "manuscript-verify-differs");
+    } finally {
+      fs.writeFileSync(file, bytes);
+    }
+  }, 40_000);
+
   it("the PI unfreezes with a reason, which the history keeps", async () => {
     await page.getByRole("button", { name: "Unfreeze…" }).click();
     const dialog = page.getByRole("dialog", { name: "Confirm unfreeze" });
@@ -232,7 +259,7 @@ describe("a manuscript from explorer views to a checked bundle", () => {
     await until("draft again", async () => (await page.getByTestId("manuscript-state").getAttribute("data-state")) === "draft", 10_000, 300);
     expect(await page.getByTestId("unfreeze-reason").textContent()).toBe("referee asks for L = 8 as well");
     const actions = await page.getByTestId("history").locator("li").evaluateAll((els) => els.map((e) => e.getAttribute("data-action")));
-    expect(actions).toEqual(["manuscript.create", "manuscript.exhibit.add", "manuscript.exhibit.add", "manuscript.collaborator.add", "manuscript.freeze", "manuscript.verify", "manuscript.verified", "manuscript.unfreeze"]);
+    expect(actions).toEqual(["manuscript.create", "manuscript.exhibit.add", "manuscript.exhibit.add", "manuscript.collaborator.add", "manuscript.freeze", "manuscript.verify", "manuscript.verified", "manuscript.verify", "manuscript.verified", "manuscript.unfreeze"]);
     expect(await page.getByTestId("exhibit-verified").count()).toBe(0); // the verification spoke for the released snapshot
     await shot(page, "manuscript-unfrozen");
     await page.goto("/manuscripts");
