@@ -146,13 +146,20 @@ export async function pageIds(b: BuiltQuery, offset: number, limit: number): Pro
  * walks of `pageIds` when all of them are read anyway).
  */
 export async function allIds(b: BuiltQuery, limit: number): Promise<string[]> {
-  if (b.sort.kind !== "param") return pageIds(b, 0, limit);
+  const one = allIdsSql(b, limit);
+  if (!one) return pageIds(b, 0, limit);
+  const rows = await db().sequelize.query<{ estimate_id: string }>(one.sql, { type: QueryTypes.SELECT, bind: one.bind });
+  return rows.map((r) => r.estimate_id);
+}
+
+/** The one statement of {@link allIds} for a parameter sort (null for a column sort, which walks `pageParts`). */
+export function allIdsSql(b: BuiltQuery, limit: number): Sql | null {
+  if (b.sort.kind !== "param") return null;
   const { where, bind, dir, sort } = b;
-  const rows = await db().sequelize.query<{ estimate_id: string }>(
-    `SELECT x.estimate_id FROM explorer.estimate_rows x LEFT JOIN explorer.param_values v ON v.estimate_id = x.estimate_id AND v.name = ${sort.nameRef}
+  return {
+    sql: `SELECT x.estimate_id FROM explorer.estimate_rows x LEFT JOIN explorer.param_values v ON v.estimate_id = x.estimate_id AND v.name = ${sort.nameRef}
       WHERE ${where} ORDER BY v.num ${dir} NULLS LAST, (CASE WHEN v.num IS NULL THEN x.params ->> ${sort.nameRef} END) ${dir} NULLS LAST, x.estimate_id ${dir}
       LIMIT ${Math.trunc(limit)}`,
-    { type: QueryTypes.SELECT, bind },
-  );
-  return rows.map((r) => r.estimate_id);
+    bind,
+  };
 }
