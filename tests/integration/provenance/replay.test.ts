@@ -12,12 +12,14 @@ import { serveCluster } from "@/broker/pipeline/cycle";
 import { collectRun } from "@/broker/pipeline/collect";
 import { loadIdentity, type Identity } from "@/lib/auth/identity";
 import { closeAdapters } from "@/lib/clusters/adapter-for";
+import { addExhibit, createManuscript } from "@/lib/manuscripts/edit-manuscript";
+import { freezeManuscript, isRunFrozen } from "@/lib/manuscripts/freeze-manuscript";
 import { sealSecret } from "@/lib/crypto/secret-box";
 import { replaysOfRun, replayStatus, requestReplay, REPLAY_QUEUE, type ReplayStatus } from "@/lib/provenance/replay/replay-run";
 import { stopBoss } from "@/lib/queue/boss";
 import { resolveArchived } from "@/lib/storage/archive-path";
 import { db, type Cluster, type Run } from "@/models";
-import { makeEnsemble, useTestDatabase } from "@/tests/support/db";
+import { makeEnsemble, makeUser, useTestDatabase } from "@/tests/support/db";
 import { isingSpec, makeCatalogSamplers, makePeople, removeTempDirs, startNode, submit, waitFor } from "@/tests/integration/broker/support";
 
 useTestDatabase();
@@ -156,6 +158,19 @@ describe("replay-run", () => {
     // The fixture alters measurement 10; rows sit at thermalization + k·interval (samplers README), so its sweep is 30 + 10.
     expect(series.difference).toMatchObject({ kind: "bytes", row: 10, sweep: THERMALIZATION + 10 });
     expect(r.samplerVersion).toContain("+patched");
+  }, 60_000);
+
+  it("replays a run beneath a frozen manuscript (the run row is frozen; the replay is recorded beside it)", async () => {
+    await cluster.update(clusterFields(good));
+    const ensemble = (await db().Ensemble.findByPk(run.ensembleId))!;
+    const piUser = await makeUser("pi", (await db().Group.findByPk(ensemble.groupId))!);
+    const pi = (await loadIdentity(piUser.id, "session"))!;
+    const ms = await createManuscript(audit, pi, { groupId: ensemble.groupId, title: "Replay beneath a freeze" });
+    await addExhibit(audit, pi, ms.id, { label: "Table 1", kind: "table", query: { ensembleIds: [ensemble.id], observable: "e", scope: "run" } });
+    await freezeManuscript(audit, pi, ms.id);
+    expect(await isRunFrozen(run.id)).toBe(true);
+    const r = await replay();
+    expect(r.state, JSON.stringify(r.report?.differences)).toBe("identical");
   }, 60_000);
 
   it("refuses a replay of a run that is not done, and returns the open replay instead of queuing a second", async () => {
