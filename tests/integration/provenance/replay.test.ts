@@ -28,6 +28,7 @@ const audit = { actorId: null, ip: null, requestId: "replay-test" };
 const THERMALIZATION = 30;
 let good: Awaited<ReturnType<typeof startNode>>;
 let patched: Awaited<ReturnType<typeof startNode>>;
+let broken: Awaited<ReturnType<typeof startNode>>;
 let cluster: Cluster;
 let run: Run;
 let who: Identity;
@@ -42,6 +43,7 @@ beforeAll(async () => {
   const people = await makePeople();
   good = await startNode({ slots: 2 });
   patched = await startNode({ slots: 2, samplerCommand: [process.execPath, path.join(import.meta.dirname, "fixtures", "patched-sampler.mjs"), "{sampler}", "{runJson}", "{outDir}"] });
+  broken = await startNode({ slots: 1, samplerCommand: [process.execPath, path.join(import.meta.dirname, "..", "broker", "fixtures", "failing-sampler.mjs"), "{runJson}"] });
   cluster = await db().Cluster.create({ name: "replay-node", kind: "fake-ssh", host: "127.0.0.1", username: "ergodex", workDir: good.node.options.workRoot, slotLimit: 2, settings: {}, ...clusterFields(good) });
   // One chain, small: 6×6 at an unusual temperature so no other test's archived series shares its bytes.
   const sub = await submit(people.researcher, isingSpec("replay-node", people.allocationName, {
@@ -64,7 +66,7 @@ beforeAll(async () => {
 afterAll(async () => {
   if (restore) fs.writeFileSync(resolveArchived(seriesFile.storagePath), restore);
   await closeAdapters();
-  await Promise.all([good?.node.close(), patched?.node.close(), stopBoss({ graceful: false })]);
+  await Promise.all([good?.node.close(), patched?.node.close(), broken?.node.close(), stopBoss({ graceful: false })]);
   removeTempDirs();
 });
 
@@ -158,6 +160,14 @@ describe("replay-run", () => {
     // The fixture alters measurement 10; rows sit at thermalization + k·interval (samplers README), so its sweep is 30 + 10.
     expect(series.difference).toMatchObject({ kind: "bytes", row: 10, sweep: THERMALIZATION + 10 });
     expect(r.samplerVersion).toContain("+patched");
+  }, 60_000);
+
+  it("a sampler that fails on the cluster makes a failed replay with the sampler's own words, not a difference", async () => {
+    await cluster.update(clusterFields(broken));
+    const r = await replay();
+    expect(r.state).toBe("failed");
+    expect(r.report!.error).toMatch(/^the replayed sampler did not finish: nonzero_exit: exit code 1: .*lattice allocation failed/);
+    expect(r.report!.files).toEqual([]);
   }, 60_000);
 
   it("replays a run beneath a frozen manuscript (the run row is frozen; the replay is recorded beside it)", async () => {
