@@ -69,7 +69,10 @@ export function EnsembleView({ initial, canAct }: { initial: EnsembleDetail; can
 
       <div className="flex flex-wrap items-start justify-between gap-4">
         {canAct ? <EnsembleActions id={e.id} unfinished={unfinished} failed={e.counts.failed ?? 0} /> : <span />}
-        <a href={`/api/v1/ensembles/${e.id}/estimates?format=csv`} className="text-sm text-accent hover:underline" data-testid="estimates-csv">Download estimates (CSV)</a>
+        <span className="flex flex-wrap gap-x-6 text-sm">
+          <a href={`/provenance/ensembles/${e.id}`} className="text-accent hover:underline" data-testid="ensemble-provenance-link">Provenance →</a>
+          <a href={`/api/v1/ensembles/${e.id}/estimates?format=csv`} className="text-accent hover:underline" data-testid="estimates-csv">Download estimates (CSV)</a>
+        </span>
       </div>
 
       <CollapsibleJson summary="Spec as submitted" value={e.spec} testId="spec" />

@@ -63,7 +63,10 @@ export function RunView({ initial }: { initial: RunDetail }) {
       </div>
       <Card title="Estimates">
         <EstimatesTable estimates={r.estimates} state={r.state} />
-        {r.estimates.length ? <Link href={`/runs/${r.id}/analysis`} className="inline-block mt-3 text-sm text-accent hover:underline">Analyse this run: thermalisation cut, autocorrelation, blocking →</Link> : null}
+        <div className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
+          {r.estimates.length ? <Link href={`/runs/${r.id}/analysis`} className="text-accent hover:underline">Analyse this run: thermalisation cut, autocorrelation, blocking →</Link> : null}
+          <Link href={`/provenance/runs/${r.id}`} className="text-accent hover:underline" data-testid="run-provenance-link">Provenance and replay →</Link>
+        </div>
       </Card>
       <Card title="Events"><EventsTimeline events={r.events} /></Card>
     </div>
