@@ -18,6 +18,8 @@ import { stateHistory, stateOf, type AllocationState, type StateChange } from ".
 export type PersonRow = { userId: string; name: string; email: string; reserved: number; charged: number; held: number; used: number; cap: number | null; capRule: string | null };
 /** One ensemble's figures on an allocation. */
 export type EnsembleRow = { ensembleId: string; name: string; owner: string; ownerId: string; state: string; reserved: number; charged: number; held: number };
+/** A cap as set, for the history. */
+export type CapChange = { at: string; subject: string; person: string | null; rule: string; who: string | null; reason: string | null };
 /** A ledger entry as the history shows it. */
 export type LedgerRow = { id: string; at: string; kind: string; coreHours: number; note: string | null; who: string | null; ensemble: string | null };
 
@@ -31,6 +33,7 @@ export type AllocationUsage = {
   byEnsemble: EnsembleRow[];
   history: StateChange[];
   ledger: LedgerRow[];
+  capChanges: CapChange[];
   contacts: Contact[];
   /** False when per-person and per-ensemble rows are limited to the caller's own. */
   full: boolean;
@@ -97,7 +100,7 @@ export async function allocationUsage(who: Identity, id: string, now = new Date(
     const [reserved, charged, released] = [r.reserved, r.charged, r.released].map(num);
     return { ensembleId: r.id, name: r.name, owner: r.owner, ownerId: r.owner_id, state: r.state, reserved, charged, held: round4(reserved - released - charged) };
   });
-  const ledger = full ? await ledgerRows(a.id) : [];
+  const [ledger, capChanges] = full ? await Promise.all([ledgerRows(a.id), capRows(a.id)]) : [[], []];
   const personCaps = [...caps.persons.entries()].map(([userId, measure]) => ({ userId, rule: describeMeasure(measure), limit: capLimit(measure, given) }))
     .filter((c) => full || c.userId === who.userId);
   return {
@@ -112,7 +115,7 @@ export async function allocationUsage(who: Identity, id: string, now = new Date(
       everyone: caps.everyone ? describeMeasure(caps.everyone) : null, ensemble: caps.ensemble ? describeMeasure(caps.ensemble) : null,
       ensembleLimit: caps.ensemble ? capLimit(caps.ensemble, given) : null, persons: personCaps,
     },
-    byPerson, byEnsemble, history, ledger, contacts, full,
+    byPerson, byEnsemble, history, ledger, capChanges, contacts, full,
   };
 }
 
@@ -125,4 +128,18 @@ async function ledgerRows(allocationId: string): Promise<LedgerRow[]> {
     { type: QueryTypes.SELECT, bind: [allocationId] },
   );
   return rows.map((r) => ({ id: r.id, at: new Date(r.created_at).toISOString(), kind: r.kind, coreHours: num(r.core_hours), note: r.note, who: r.who, ensemble: r.ensemble }));
+}
+
+/** Every cap row of an allocation, newest first (what was set, for whom, by whom, why). */
+async function capRows(allocationId: string): Promise<CapChange[]> {
+  const rows = await db().sequelize.query<{ created_at: Date; subject: string; person: string | null; core_hours: string | null; share: string | null; who: string | null; reason: string | null }>(
+    `SELECT c.created_at, c.subject, p.name AS person, c.core_hours, c.share, u.name AS who, c.reason
+       FROM allocation_caps c LEFT JOIN users p ON p.id = c.user_id LEFT JOIN users u ON u.id = c.actor_id
+      WHERE c.allocation_id = $1 ORDER BY c.id DESC LIMIT 100`,
+    { type: QueryTypes.SELECT, bind: [allocationId] },
+  );
+  return rows.map((r) => ({
+    at: new Date(r.created_at).toISOString(), subject: r.subject, person: r.person, who: r.who, reason: r.reason,
+    rule: r.core_hours !== null ? describeMeasure({ coreHours: Number(r.core_hours) }) : r.share !== null ? describeMeasure({ share: Number(r.share) }) : "lifted",
+  }));
 }

@@ -63,7 +63,8 @@ export default async function AllocationPage({ params }: { params: Promise<{ id:
               <thead><tr><th>When</th><th>What</th><th className="n">Core-hours</th><th>Who</th><th>Reason</th></tr></thead>
               <tbody>
                 {[...u.ledger.map((l) => ({ at: l.at, what: l.kind === "grant" ? "grant / top-up" : "adjustment", hours: l.coreHours as number | null, who: l.who, reason: l.note })),
-                  ...u.history.map((h) => ({ at: h.at.toISOString(), what: `state → ${h.state}`, hours: null, who: h.actorName, reason: h.reason }))]
+                  ...u.history.map((h) => ({ at: h.at.toISOString(), what: `state → ${h.state}`, hours: null, who: h.actorName, reason: h.reason })),
+                  ...u.capChanges.map((c) => ({ at: c.at, what: `cap ${c.subject === "person" ? `for ${c.person}` : c.subject === "everyone" ? "for everyone" : "per ensemble"}: ${c.rule}`, hours: null, who: c.who, reason: c.reason }))]
                   .sort((x, y) => y.at.localeCompare(x.at))
                   .map((r, k) => <tr key={k}><td className="num text-xs whitespace-nowrap" title={utc(r.at)}>{r.at.slice(0, 16).replace("T", " ")}</td><td>{r.what}</td><td className="n">{r.hours === null ? "" : coreHours(r.hours)}</td><td>{r.who ?? "system"}</td><td>{r.reason}</td></tr>)}
               </tbody>
