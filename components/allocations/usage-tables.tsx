@@ -87,8 +87,27 @@ export function PersonUsage({ rows }: { rows: PersonRow[] }) {
   );
 }
 
-/** Per-ensemble table. */
+/** Per-ensemble table and plot. */
 export function EnsembleUsage({ rows }: { rows: EnsembleRow[] }) {
   if (rows.length === 0) return <p className="text-sm text-ink-soft">No ensemble has reserved on this allocation yet.</p>;
-  return <SortTable data={rows} columns={ensembleColumns} testId="usage-by-ensemble" initial={[{ id: "charged", desc: true }]} />;
+  // the plot shows the twelve largest; the table lists them all
+  const plot = [...rows].sort((x, y) => y.charged + y.held - (x.charged + x.held)).slice(0, 12).map((r) => ({ name: r.name, charged: r.charged, held: r.held }));
+  return (
+    <div className="grid xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] gap-4 items-start">
+      <div className="min-w-0 overflow-x-auto"><SortTable data={rows} columns={ensembleColumns} testId="usage-by-ensemble" initial={[{ id: "charged", desc: true }]} /></div>
+      <figure aria-label="core-hours by ensemble" data-testid="ensemble-plot">
+        <ResponsiveContainer width="100%" height={Math.max(140, 30 * plot.length + 48)}>
+          <BarChart data={plot} layout="vertical" margin={{ top: 4, right: 16, bottom: 4, left: 8 }}>
+            <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" horizontal={false} />
+            <XAxis type="number" tick={{ fontSize: 11 }} tickFormatter={(v: number) => coreHours(v)} />
+            <YAxis type="category" dataKey="name" width={150} tick={{ fontSize: 11 }} />
+            <Tooltip formatter={(v, n) => [`${coreHours(Number(v))} core-h`, n]} />
+            <Legend wrapperStyle={{ fontSize: 12 }} />
+            <Bar dataKey="charged" stackId="u" fill="#0f6b6b" name="charged" isAnimationActive={false} />
+            <Bar dataKey="held" stackId="u" fill="#56B4E9" name="held" isAnimationActive={false} />
+          </BarChart>
+        </ResponsiveContainer>
+      </figure>
+    </div>
+  );
 }

@@ -10,6 +10,8 @@ import { launch, newPage, signInAs, shot } from "./support/browser";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { hashPassword } from "@/lib/auth/passwords";
 import { setCap } from "@/lib/allocations/manage-allocations";
+import { transitionRun } from "@/lib/runs/transition-run";
+import { makeEnsemble } from "@/tests/support/db";
 import { db } from "@/models";
 
 const coordinator = DEMO_PEOPLE.find((p) => p.role === "coordinator")!;
@@ -45,15 +47,32 @@ beforeAll(async () => {
 }, 30_000);
 afterAll(async () => close?.());
 
-/** Thirty days of invented use before today: Dana runs a lot, Rhea 19 core-hours. */
+/** Two parked ensembles of Dana's on the allocation (no cluster, runs cancelled: nothing for the broker to start). */
+async function danasEnsembles(id: string): Promise<string[]> {
+  const m = db();
+  const owner = (await m.User.findByPk(dana.id))!;
+  const group = (await m.Group.findOne({ where: { name: groupName } }))!;
+  const sampler = (await m.Sampler.findOne({ where: { name: "ising2d", version: "1.0.0" } }))!;
+  const out: string[] = [];
+  for (const name of ["scan A", "scan B"]) {
+    const { ensemble, runs } = await makeEnsemble({ owner, group, sampler, cluster: null, allocation: null, points: [{ L: 8, T: 2.3, algorithm: "metropolis" }], replicas: 1 });
+    await ensemble.update({ name: `e2e ${name} ${tag}`, allocationId: id });
+    for (const r of runs) await transitionRun(r.id, "cancelled", { cause: "test.park" });
+    out.push(ensemble.id);
+  }
+  return out;
+}
+
+/** Thirty days of invented use before today: Dana runs a lot (two ensembles), Rhea 19 core-hours. */
 async function backdatedUse(id: string) {
-  const rows: [string, number, number][] = []; // user, core-hours, days ago
-  for (let d = 28; d >= 1; d -= 3) rows.push([dana.id, 10 + (d % 7) * 2, d]);
-  rows.push([researcher.id, 12, 20], [researcher.id, 7, 6]);
-  for (const [userId, h, ago] of rows) {
+  const ensembles = await danasEnsembles(id);
+  const rows: [string, number, number, string | null][] = []; // user, core-hours, days ago, ensemble
+  for (let d = 28; d >= 1; d -= 3) rows.push([dana.id, 10 + (d % 7) * 2, d, ensembles[d % 2]]);
+  rows.push([researcher.id, 12, 20, null], [researcher.id, 7, 6, null]);
+  for (const [userId, h, ago, ensembleId] of rows) {
     for (const [kind, x] of [["reserve", h * 1.25], ["charge", h], ["release", h * 0.25]] as const) {
-      await db().sequelize.query("INSERT INTO ledger_entries (allocation_id, kind, core_hours, user_id, note, created_at) VALUES ($1, $2, $3, $4, 'e2e use', $5)",
-        { type: QueryTypes.INSERT, bind: [id, kind, x, userId, new Date(Date.now() - ago * DAY)] });
+      await db().sequelize.query("INSERT INTO ledger_entries (allocation_id, kind, core_hours, user_id, ensemble_id, note, created_at) VALUES ($1, $2, $3, $4, $5, 'e2e use', $6)",
+        { type: QueryTypes.INSERT, bind: [id, kind, x, userId, ensembleId, new Date(Date.now() - ago * DAY)] });
     }
   }
 }
@@ -95,6 +114,11 @@ describe("allocations in the browser", () => {
     const people = await page.getByTestId("usage-by-person").locator("tbody tr").allTextContents();
     expect(people).toHaveLength(2);
     expect(people.find((t) => t.includes("Rhea"))).toMatch(/19.*20.*95 %/);
+    // Dana's 152 core-hours split by day parity: days 28, 22, 16, 10, 4 → scan A (10+12+14+16+18 = 70), the rest → scan B (82)
+    const ensembles = await page.getByTestId("usage-by-ensemble").locator("tbody tr").allTextContents();
+    expect(ensembles).toHaveLength(2);
+    expect(ensembles[0]).toMatch(new RegExp(`^e2e scan B ${tag}Dana Heavy ${tag}[a-z]+102\\.582`));
+    expect(ensembles[1]).toMatch(new RegExp(`^e2e scan A ${tag}Dana Heavy ${tag}[a-z]+87\\.570`));
     await shot(page, "allocations-coordinator-burn");
   }, 30_000);
 
