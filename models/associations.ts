@@ -63,4 +63,8 @@ export function associate(m: ModelSet): void {
 
   SavedView.belongsTo(User, { as: "owner", foreignKey: "ownerId" });
   SavedView.belongsTo(Group, { as: "group", foreignKey: "groupId" });
+
+  m.PlannerPrediction.belongsTo(User, { as: "user", foreignKey: "userId" });
+  m.PlannerOutcome.belongsTo(m.PlannerPrediction, { as: "prediction", foreignKey: "predictionId" });
+  m.PlannerOutcome.belongsTo(Ensemble, { as: "ensemble", foreignKey: "ensembleId" });
 }

@@ -26,6 +26,8 @@ import { Manuscript, initManuscript } from "./manuscript";
 import { Exhibit, initExhibit } from "./exhibit";
 import { OutboxMessage, initOutboxMessage } from "./outbox-message";
 import { SavedView, initSavedView } from "./saved-view";
+import { PlannerPrediction, initPlannerPrediction } from "./planner-prediction";
+import { PlannerOutcome, initPlannerOutcome } from "./planner-outcome";
 
 export * from "./user";
 export * from "./group";
@@ -51,6 +53,8 @@ export * from "./manuscript";
 export * from "./exhibit";
 export * from "./outbox-message";
 export * from "./saved-view";
+export * from "./planner-prediction";
+export * from "./planner-outcome";
 
 const definitions = {
   User: [User, initUser],
@@ -79,6 +83,8 @@ const definitions = {
   Exhibit: [Exhibit, initExhibit],
   OutboxMessage: [OutboxMessage, initOutboxMessage],
   SavedView: [SavedView, initSavedView],
+  PlannerPrediction: [PlannerPrediction, initPlannerPrediction],
+  PlannerOutcome: [PlannerOutcome, initPlannerOutcome],
 } as const;
 
 type Definitions = typeof definitions;

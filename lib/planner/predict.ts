@@ -39,15 +39,11 @@ export async function predictEnsemble(who: Identity, body: PlannerBody): Promise
     error: c.error, n: c.n, interval: c.interval, thermCut: c.thermCut,
     secondsPerSweep: c.wallSeconds !== null && c.sweeps ? c.wallSeconds / c.sweeps : null,
   }));
-  const row = (await db().sequelize.query(
-    `INSERT INTO planner_predictions (user_id, sampler, observable, target_error, replicas, measurements, "interval", core_hours, pilot_ensemble_id, request, plan)
-     VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11) RETURNING id, created_at`,
-    {
-      bind: [who.userId, req.sampler, req.observable, req.targetError, req.replicas, plan.measurements, plan.request.interval, plan.coreHours,
-        body.pilotEnsembleId ?? null, JSON.stringify(body), JSON.stringify({ ...plan, inputs })],
-      type: "SELECT",
-    },
-  )) as { id: string; created_at: Date }[];
-  const id = row[0].id;
-  return { ...plan, id, tag: planTag(id), createdAt: new Date(row[0].created_at).toISOString(), pilotEnsembleId: body.pilotEnsembleId ?? null, inputs };
+  const row = await db().PlannerPrediction.create({
+    userId: who.userId, sampler: req.sampler, observable: req.observable, targetError: req.targetError, replicas: req.replicas,
+    measurements: plan.measurements, interval: plan.request.interval, coreHours: plan.coreHours, pilotEnsembleId: body.pilotEnsembleId ?? null,
+    request: body as unknown as Record<string, unknown>, plan: { ...plan, inputs } as unknown as Record<string, unknown>,
+  });
+  const id = row.id;
+  return { ...plan, id, tag: planTag(id), createdAt: row.createdAt.toISOString(), pilotEnsembleId: body.pilotEnsembleId ?? null, inputs };
 }
