@@ -102,6 +102,11 @@ describe("allocation usage over HTTP", () => {
     expect(out.stderr).toContain("refused by: person cap (needed 1 core-hours, free 0)");
   });
 
+  it("the running broker registered the weekly digest with pg-boss's cron (Mondays 07:00 UTC)", async () => {
+    const rows = await db().sequelize.query<{ cron: string; timezone: string }>("SELECT cron, timezone FROM pgboss.schedule WHERE name = 'allocation-digest'", { type: QueryTypes.SELECT });
+    expect(rows).toEqual([{ cron: "0 7 * * 1", timezone: "UTC" }]);
+  });
+
   it("a top-up without hours and an adjustment without a reason are 422 with the field", async () => {
     const noHours = await api("POST", `/api/v1/allocations/${allocationId}/ledger`, { token: tokens.coord }, { kind: "top-up" });
     expect(noHours.status).toBe(422);
