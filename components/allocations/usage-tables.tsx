@@ -63,6 +63,27 @@ const ensembleColumns = [
   e.accessor("held", { header: "Held", ...num }),
 ];
 
+type BarRow = { name: string; charged: number; held: number };
+
+/** Charged and held core-hours as stacked horizontal bars, one a row. */
+function UsageBars({ data, label, testId, rowHeight }: { data: BarRow[]; label: string; testId: string; rowHeight: number }) {
+  return (
+    <figure aria-label={label} data-testid={testId}>
+      <ResponsiveContainer width="100%" height={Math.max(140, rowHeight * data.length + 48)}>
+        <BarChart data={data} layout="vertical" margin={{ top: 4, right: 16, bottom: 4, left: 8 }}>
+          <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" horizontal={false} />
+          <XAxis type="number" tick={{ fontSize: 11 }} tickFormatter={(v: number) => coreHours(v)} />
+          <YAxis type="category" dataKey="name" width={150} tick={{ fontSize: 11 }} />
+          <Tooltip formatter={(v, n) => [`${coreHours(Number(v))} core-h`, n]} />
+          <Legend wrapperStyle={{ fontSize: 12 }} />
+          <Bar dataKey="charged" stackId="u" fill="#0f6b6b" name="charged" isAnimationActive={false} />
+          <Bar dataKey="held" stackId="u" fill="#56B4E9" name="held" isAnimationActive={false} />
+        </BarChart>
+      </ResponsiveContainer>
+    </figure>
+  );
+}
+
 /** Per-person table and plot. */
 export function PersonUsage({ rows }: { rows: PersonRow[] }) {
   if (rows.length === 0) return <p className="text-sm text-ink-soft">Nobody has used this allocation yet.</p>;
@@ -70,19 +91,7 @@ export function PersonUsage({ rows }: { rows: PersonRow[] }) {
   return (
     <div className="grid xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] gap-4 items-start">
       <div className="min-w-0 overflow-x-auto"><SortTable data={rows} columns={personColumns} testId="usage-by-person" initial={[{ id: "used", desc: true }]} /></div>
-      <figure aria-label="core-hours by person" data-testid="person-plot">
-        <ResponsiveContainer width="100%" height={Math.max(140, 36 * plot.length + 48)}>
-          <BarChart data={plot} layout="vertical" margin={{ top: 4, right: 16, bottom: 4, left: 8 }}>
-            <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" horizontal={false} />
-            <XAxis type="number" tick={{ fontSize: 11 }} tickFormatter={(v: number) => coreHours(v)} />
-            <YAxis type="category" dataKey="name" width={150} tick={{ fontSize: 11 }} />
-            <Tooltip formatter={(v, n) => [`${coreHours(Number(v))} core-h`, n]} />
-            <Legend wrapperStyle={{ fontSize: 12 }} />
-            <Bar dataKey="charged" stackId="u" fill="#0f6b6b" name="charged" isAnimationActive={false} />
-            <Bar dataKey="held" stackId="u" fill="#56B4E9" name="held" isAnimationActive={false} />
-          </BarChart>
-        </ResponsiveContainer>
-      </figure>
+      <UsageBars data={plot} label="core-hours by person" testId="person-plot" rowHeight={36} />
     </div>
   );
 }
@@ -95,19 +104,7 @@ export function EnsembleUsage({ rows }: { rows: EnsembleRow[] }) {
   return (
     <div className="grid xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] gap-4 items-start">
       <div className="min-w-0 overflow-x-auto"><SortTable data={rows} columns={ensembleColumns} testId="usage-by-ensemble" initial={[{ id: "charged", desc: true }]} /></div>
-      <figure aria-label="core-hours by ensemble" data-testid="ensemble-plot">
-        <ResponsiveContainer width="100%" height={Math.max(140, 30 * plot.length + 48)}>
-          <BarChart data={plot} layout="vertical" margin={{ top: 4, right: 16, bottom: 4, left: 8 }}>
-            <CartesianGrid stroke="#e1e4e6" strokeDasharray="3 3" horizontal={false} />
-            <XAxis type="number" tick={{ fontSize: 11 }} tickFormatter={(v: number) => coreHours(v)} />
-            <YAxis type="category" dataKey="name" width={150} tick={{ fontSize: 11 }} />
-            <Tooltip formatter={(v, n) => [`${coreHours(Number(v))} core-h`, n]} />
-            <Legend wrapperStyle={{ fontSize: 12 }} />
-            <Bar dataKey="charged" stackId="u" fill="#0f6b6b" name="charged" isAnimationActive={false} />
-            <Bar dataKey="held" stackId="u" fill="#56B4E9" name="held" isAnimationActive={false} />
-          </BarChart>
-        </ResponsiveContainer>
-      </figure>
+      <UsageBars data={plot} label="core-hours by ensemble" testId="ensemble-plot" rowHeight={30} />
     </div>
   );
 }

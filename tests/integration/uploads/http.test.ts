@@ -1,25 +1,21 @@
 // Uploads over HTTP against the running test stack (npm test) and the `ergodex deposit` CLI.
-import crypto from "node:crypto";
 import { execFile } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createApiToken } from "@/lib/auth/tokens";
 import { env } from "@/lib/env";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { db } from "@/models";
 import { api, base } from "../../support/http";
 import { cleanupTemp, copyBundle, editCsv, tempDir } from "../importer/bundles";
-import { filesOf, goodBundle, leftovers, tarOf, uploadCounts, zipOf } from "./support";
+import { demoToken, filesOf, goodBundle, randomSeed, leftovers, tarOf, uploadCounts, zipOf } from "./support";
 
-const researcher = DEMO_PEOPLE.find((p) => p.role === "researcher")!.email;
 let token: string;
-const seed = () => String(crypto.randomInt(1, 2 ** 47));
+const seed = randomSeed;
 afterAll(cleanupTemp);
 
 beforeAll(async () => {
-  const user = (await db().User.findOne({ where: { email: researcher } }))!;
-  token = (await createApiToken({ actorId: user.id, ip: null, requestId: null }, user.id, `upload test ${seed()}`, 1)).token;
+  token = await demoToken("researcher", "upload test");
 });
 
 const post = async (body: BodyInit, type?: string, name?: string) => {
@@ -74,8 +70,7 @@ describe("POST /api/v1/imports over HTTP", () => {
     const empty = await post(new Uint8Array(0), "application/zip");
     expect(empty.status).toBe(422);
     expect(empty.json.error!.message).toMatch(/the upload is empty/);
-    const viewer = (await db().User.findOne({ where: { email: DEMO_PEOPLE.find((p) => p.role === "viewer")!.email } }))!;
-    const vt = (await createApiToken({ actorId: viewer.id, ip: null, requestId: null }, viewer.id, `viewer upload ${seed()}`, 1)).token;
+    const vt = await demoToken("viewer", "viewer upload");
     const res = await fetch(`${base}/api/v1/imports`, { method: "POST", headers: { authorization: `Bearer ${vt}`, "content-type": "application/zip" }, body: new Uint8Array(await zipOf(filesOf(goodBundle(seed())))) });
     expect(res.status).toBe(403);
     expect(leftovers(env.uploads.dir)).toEqual([]);

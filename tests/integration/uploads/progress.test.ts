@@ -1,22 +1,16 @@
 // POST /api/v1/imports with Accept: application/x-ndjson over HTTP: the import's progress streams
 // line by line (received → per bundle its steps, then its outcome → result); without the header the
 // answer is one JSON document as before (what `ergodex deposit` reads, tested in http.test.ts).
-import crypto from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createApiToken } from "@/lib/auth/tokens";
-import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
-import { db } from "@/models";
 import { base } from "../../support/http";
 import { cleanupTemp, copyBundle, editCsv } from "../importer/bundles";
-import { filesOf, goodBundle, uploadCounts, zipOf } from "./support";
+import { demoToken, filesOf, goodBundle, randomSeed, uploadCounts, zipOf } from "./support";
 
-const researcher = DEMO_PEOPLE.find((p) => p.role === "researcher")!.email;
 let token: string;
-const seed = () => String(crypto.randomInt(1, 2 ** 47));
+const seed = randomSeed;
 afterAll(cleanupTemp);
 beforeAll(async () => {
-  const user = (await db().User.findOne({ where: { email: researcher } }))!;
-  token = (await createApiToken({ actorId: user.id, ip: null, requestId: null }, user.id, `progress test ${seed()}`, 1)).token;
+  token = await demoToken("researcher", "progress test");
 });
 
 type Line = { type: string; index?: number; total?: number; stage?: string; bundle?: string; bundles?: number; outcome?: { status: string; bundle: string }; data?: { bundles: { status: string }[]; accepted: number } };

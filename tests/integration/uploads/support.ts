@@ -7,6 +7,8 @@ import zlib from "node:zlib";
 import tar from "tar-stream";
 import yazl from "yazl";
 import { db, type Run } from "@/models";
+import { createApiToken } from "@/lib/auth/tokens";
+import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import type { UploadLimits } from "@/lib/uploads/limits";
 import { sampleBundle, tempDir } from "../importer/bundles";
 
@@ -97,3 +99,12 @@ export async function uploadCounts(): Promise<Record<string, number>> {
 export const leftovers = (dir: string) => (fs.existsSync(dir) ? fs.readdirSync(dir) : []);
 
 export const tmp = () => fs.mkdtempSync(path.join(os.tmpdir(), "ergodex-up-"));
+
+/** A random seed for a fresh bundle (uploads are recognised by hash, so each test wants its own). */
+export const randomSeed = () => String(crypto.randomInt(1, 2 ** 47));
+
+/** A one-day API token for the demo person with `role`, labelled so the test that made it is known. */
+export async function demoToken(role: "researcher" | "viewer", label: string): Promise<string> {
+  const user = (await db().User.findOne({ where: { email: DEMO_PEOPLE.find((p) => p.role === role)!.email } }))!;
+  return (await createApiToken({ actorId: user.id, ip: null, requestId: null }, user.id, `${label} ${randomSeed()}`, 1)).token;
+}
