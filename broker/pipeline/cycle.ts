@@ -75,17 +75,42 @@ export async function serveCluster(cluster: Cluster, log: Logger): Promise<Cycle
   return locked.ran ? locked.value : { skipped: "locked" };
 }
 
+/**
+ * How many clusters one cycle serves at once. Each one holds its lock's transaction (a pooled
+ * connection) while its work needs another, so with every active cluster in parallel a group with
+ * more clusters than half the pool (10) would hold every connection in lock transactions and wait
+ * forever for one more: three lanes leave the pool room for collect, verify and mail jobs.
+ */
+const CLUSTER_LANES = 3;
+
+/**
+ * fn over items, at most `lanes` at a time, results in input order. Ten lines by hand rather than
+ * a dependency (p-limit) for one call site.
+ */
+async function mapInLanes<T, R>(items: T[], lanes: number, fn: (item: T) => Promise<R>): Promise<R[]> {
+  const results = new Array<R>(items.length);
+  let next = 0;
+  const lane = async () => {
+    while (next < items.length) {
+      const i = next++;
+      results[i] = await fn(items[i]);
+    }
+  };
+  await Promise.all(Array.from({ length: Math.min(lanes, items.length) }, lane));
+  return results;
+}
+
 /** Run one cycle over every active cluster. */
 export async function runCycle(log: Logger): Promise<CycleOutcome> {
   const clusters = await activeClusters();
-  const results = await Promise.all(clusters.map(async (c) => {
+  const results = await mapInLanes(clusters, CLUSTER_LANES, async (c) => {
     try {
       return [c.name, await serveCluster(c, log)] as const;
     } catch (err) {
       log.error({ err, cluster: c.name }, "cluster cycle failed");
       return [c.name, { error: (err as Error).message }] as const;
     }
-  }));
+  });
   await requeueStaleCollections(120);
   if (Date.now() - lastMailSweep > MAIL_SWEEP_MS) {
     lastMailSweep = Date.now();

@@ -50,8 +50,15 @@ async function pickAllocation(who: Identity, spec: EnsembleSpec, transaction?: T
   return refuse({ path: "/allocation", message: `your groups have ${current.length} current allocations (${current.map((a) => a.name).join(", ")}); name one` });
 }
 
-async function pickCluster(spec: EnsembleSpec, transaction?: Transaction): Promise<Cluster> {
+async function pickCluster(spec: EnsembleSpec, allocation: Allocation, transaction?: Transaction): Promise<Cluster> {
   const { Cluster } = modelsFor(transaction);
+  // An allocation granted on one cluster places its ensembles there unless the spec says otherwise
+  // (admission then checks that a named cluster is the allocation's).
+  if (!spec.cluster && allocation.clusterId) {
+    const c = await Cluster.findByPk(allocation.clusterId, { transaction });
+    if (c?.active) return c;
+    return refuse({ path: "/cluster", message: `allocation "${allocation.name}" is granted on ${c ? `cluster "${c.name}", which is not taking new runs (inactive)` : "a cluster that no longer exists"}` });
+  }
   if (spec.cluster) {
     const c = await Cluster.findOne({ where: { name: spec.cluster }, transaction });
     if (!c) return refuse({ path: "/cluster", message: `no cluster named "${spec.cluster}"` });
@@ -68,8 +75,8 @@ async function pickCluster(spec: EnsembleSpec, transaction?: Transaction): Promi
 
 /**
  * Resolve sampler, allocation and cluster of a spec for `who`: spec.allocation / spec.cluster by
- * name, else the only current allocation of the submitter's groups and the only active cluster
- * (or the only active loopback one). Problems are AppError("invalid") naming the field.
+ * name, else the only current allocation of the submitter's groups and its cluster if it is granted on
+ * one, else the only active cluster (or the only active loopback one). Problems are AppError("invalid") naming the field.
  */
 export async function resolvePlacement(who: Identity, spec: EnsembleSpec, transaction?: Transaction): Promise<Placement> {
   assertMaySubmit(who);
@@ -81,5 +88,5 @@ export async function resolvePlacement(who: Identity, spec: EnsembleSpec, transa
   if (who.role !== "admin" && !who.groupIds.includes(allocation.groupId)) {
     refuse({ path: "/allocation", message: `you are not a member of the group of allocation "${allocation.name}"` });
   }
-  return { sampler: sampler!, allocation, cluster: await pickCluster(spec, transaction) };
+  return { sampler: sampler!, allocation, cluster: await pickCluster(spec, allocation, transaction) };
 }

@@ -83,7 +83,7 @@ describe("allocation usage over HTTP", () => {
   it("refuses an over-cap submission with the explanation: API 409 body and the CLI", async () => {
     // Bo has used 40 of a 25 core-hour cap: anything is refused, with his cap as the limit
     const spec = { format: "ergodex.ensemble/1", name: `over cap ${tag}`, sampler: { name: "ising2d", version: "1.0.0" }, fixed: { L: 8, T: 2.3, algorithm: "metropolis" },
-      replicas: 1, thermalization: 10, measurements: 10, seed: "5", resources: { cores: 1, wallMinutes: 60 }, allocation: `http ${tag}` };
+      replicas: 1, thermalization: 10, measurements: 10, seed: "5", resources: { cores: 1, wallMinutes: 60 }, allocation: `http ${tag}`, cluster: "tarn-loopback" };
     const res = await api("POST", "/api/v1/ensembles", { token: tokens.bo }, spec);
     expect(res.status).toBe(409);
     expect(res.json!.error).toMatchObject({ code: "insufficient_allocation", limit: "person_cap", needed: 1, free: 0, contacts: [{ name: `Coordinator ${tag}` }] });

@@ -22,7 +22,7 @@ const tag = `api-${crypto.randomBytes(4).toString("hex")}`;
 const tinySpec = (over: Record<string, unknown> = {}) => ({
   format: "ergodex.ensemble/1", name: `tiny ${tag}`, sampler: { name: "ising2d", version: "1.0.0" },
   fixed: { L: 8, algorithm: "metropolis" }, scan: [{ param: "T", values: [2.2, 2.4] }], replicas: 1,
-  thermalization: 100, measurements: 200, seed: "424242", resources: { cores: 1, wallMinutes: 5 }, tags: [tag], ...over,
+  thermalization: 100, measurements: 200, seed: "424242", resources: { cores: 1, wallMinutes: 5 }, tags: [tag], cluster: "tarn-loopback", ...over,
 });
 
 /** Run the CLI; resolves with its exit code and output (never rejects on a non-zero exit). */
@@ -166,7 +166,7 @@ describe("the ergodex CLI", () => {
     fs.writeFileSync(file, [
       "format: ergodex.ensemble/1", `name: tiny yaml ${tag}`, "sampler: { name: ising2d, version: '1.0.0' }",
       "fixed: { L: 8, T: 2.3, algorithm: metropolis }", "replicas: 1", "thermalization: 100", "measurements: 200",
-      "seed: '77'", "resources: { cores: 1, wallMinutes: 5 }", `tags: [${tag}-cli]`, ""].join("\n"));
+      "seed: '77'", "resources: { cores: 1, wallMinutes: 5 }", "cluster: tarn-loopback", `tags: [${tag}-cli]`, ""].join("\n"));
     const sent = await cli(["send", file]);
     expect(sent.stderr).toBe("");
     expect(sent.code).toBe(0);
