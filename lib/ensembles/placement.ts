@@ -52,12 +52,11 @@ async function pickAllocation(who: Identity, spec: EnsembleSpec, transaction?: T
 
 async function pickCluster(spec: EnsembleSpec, allocation: Allocation, transaction?: Transaction): Promise<Cluster> {
   const { Cluster } = modelsFor(transaction);
-  // An allocation granted on one cluster places its ensembles there unless the spec says otherwise
-  // (admission then checks that a named cluster is the allocation's).
+  // An allocation granted on one active cluster places its ensembles there unless the spec says
+  // otherwise; anywhere else, admission (lib/ensembles/funds.ts) explains the cluster limit.
   if (!spec.cluster && allocation.clusterId) {
     const c = await Cluster.findByPk(allocation.clusterId, { transaction });
     if (c?.active) return c;
-    return refuse({ path: "/cluster", message: `allocation "${allocation.name}" is granted on ${c ? `cluster "${c.name}", which is not taking new runs (inactive)` : "a cluster that no longer exists"}` });
   }
   if (spec.cluster) {
     const c = await Cluster.findOne({ where: { name: spec.cluster }, transaction });

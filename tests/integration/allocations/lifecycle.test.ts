@@ -101,6 +101,17 @@ describe("allocation lifecycle", () => {
     expect(refused.message).toContain("is for another cluster than the one this submission goes to");
   });
 
+  it("an allocation granted on one active cluster places a spec that names none there, among several", async () => {
+    const group = await makeGroup();
+    const coord = await person("coordinator", null);
+    const researcher = await person("researcher", group);
+    const granted = await makeCluster(); // a second active cluster: without the allocation's, the spec would be ambiguous
+    await grantAllocation(audit(coord.who), { groupId: group.id, name: "on granted", periodStart: "2026-01-01", periodEnd: "2027-06-01", coreHours: 100, clusterId: granted.id });
+    expect(await db().Cluster.count({ where: { active: true } })).toBeGreaterThan(1);
+    const { ensembleId } = await submitEnsemble(audit(researcher.who), researcher.who, isingSpec());
+    expect((await db().Ensemble.findByPk(ensembleId))!.clusterId).toBe(granted.id);
+  });
+
   it("refuses a grant with a bad period or group, naming the field", async () => {
     const coord = await person("coordinator", null);
     const group = await makeGroup();
