@@ -36,6 +36,8 @@ export async function cancelEnsembleRuns(ensembleId: string, adapter: ClusterAda
           cause: "broker.cancel", transaction, detail: { coreHours, clusterState: s?.state ?? null },
           patch: { coreHoursUsed: coreHours, ...(s?.startedAt ? { startedAt: new Date(s.startedAt) } : {}) },
         });
+        // Settled in the same transaction: nobody sees a cancelled run whose reservation is still held.
+        if (!(await settleRun(run.id, { transaction })).alreadySettled) out.settled++;
       });
     } catch (err) {
       if (err instanceof AppError && err.code === "conflict") log.info({ runId: run.id }, "run ended before the cancel reached it");

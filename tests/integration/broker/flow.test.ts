@@ -190,12 +190,13 @@ describe("broker flow", () => {
   });
 
   it("a run stopped at the cluster's wall-time limit resumes from its checkpoint; its series is byte-identical to an uninterrupted run", async () => {
-    // L=16, 1000 + 4000×150 sweeps: several seconds of work, so the cluster's 2 s limit stops the
+    // L=16, 1000 + 4000×600 sweeps: about 8 s of work on an idle machine (4000×150 once finished inside
+    // 2 s), so the cluster's 2 s limit stops the
     // first attempt part-way. Once one stop has written a checkpoint, the coordinator raises the
     // limit (as for a longer partition): the attempts after it resume from the checkpoint and finish.
     // Raising it keeps the number of attempts bounded however fast or slow the machine is.
     const spec = isingSpec("short", people.allocationName, {
-      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 4000, interval: 150,
+      scan: [], fixed: { L: 16, T: 2.3, algorithm: "metropolis" }, replicas: 1, thermalization: 1000, measurements: 4000, interval: 600,
       resources: { cores: 1, wallMinutes: 10, memoryMb: 256 }, retry: { maxAttempts: 10, on: [], resumeOnWallTime: true },
     });
     const sub = await submit(people.researcher, spec);
