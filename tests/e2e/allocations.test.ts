@@ -6,7 +6,7 @@ import crypto from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { QueryTypes } from "sequelize";
 import type { Browser, Page } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInToOverview, shot } from "./support/browser";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { hashPassword } from "@/lib/auth/passwords";
 import { setCap } from "@/lib/allocations/manage-allocations";
@@ -42,8 +42,7 @@ beforeAll(async () => {
   dana = { id: d.id };
   ({ browser, close } = await launch());
   ({ page } = await newPage(browser));
-  await signInAs(page, coordinator.email, coordinator.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, coordinator.email, coordinator.password);
 }, 30_000);
 afterAll(async () => close?.());
 
@@ -124,8 +123,7 @@ describe("allocations in the browser", () => {
 
   it("the researcher's over-cap submission is refused with what it needed, what is free, the limit and whom to ask", async () => {
     const { context, page: rp } = await newPage(browser);
-    await signInAs(rp, researcher.email, password);
-    await rp.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(rp, researcher.email, password);
     const spec = { format: "ergodex.ensemble/1", name: `e2e over cap ${tag}`, sampler: { name: "ising2d", version: "1.0.0" }, fixed: { L: 8, T: 2.3, algorithm: "metropolis" },
       replicas: 1, thermalization: 100, measurements: 100, seed: "42", resources: { cores: 2, wallMinutes: 60 }, allocation: allocName };
     await rp.goto("/ensembles/new");

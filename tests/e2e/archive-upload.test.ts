@@ -6,7 +6,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, expect, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInToOverview, shot } from "./support/browser";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { cleanupTemp, copyBundle, editManifest, tempDir } from "@/tests/integration/importer/bundles";
 import { filesOf, goodBundle, zipOf } from "@/tests/integration/uploads/support";
@@ -31,8 +31,7 @@ beforeAll(async () => {
   fs.writeFileSync(zipFile, await zipOf(items));
   ({ browser, close } = await launch());
   ({ page } = await newPage(browser));
-  await signInAs(page, researcher.email, researcher.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, researcher.email, researcher.password);
 });
 afterAll(async () => { await close?.(); cleanupTemp(); });
 

@@ -6,7 +6,7 @@
 import crypto from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, BrowserContext, Page } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInToOverview, shot } from "./support/browser";
 import { stateCount, until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { concise } from "@/lib/format";
@@ -41,8 +41,7 @@ let tinyRunId = "";
 beforeAll(async () => {
   ({ browser, close } = await launch());
   ({ context: ctx, page } = await newPage(browser));
-  await signInAs(page, researcher.email, researcher.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, researcher.email, researcher.password);
 });
 afterAll(async () => close?.());
 
@@ -171,8 +170,7 @@ describe("ensembles in the browser", () => {
     await page.getByText("wall_time_exceeded").first().waitFor();
     await shot(page, "run-failed");
     const { context, page: adminPage } = await newPage(browser);
-    await signInAs(adminPage, admin.email, admin.password);
-    await adminPage.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(adminPage, admin.email, admin.password);
     await until("the failure e-mail in the Mailbox", async () => {
       await adminPage.goto("/mailbox");
       return (await adminPage.locator("main").textContent())?.includes(failingName);
@@ -208,8 +206,7 @@ describe("ensembles in the browser", () => {
     const user = await m.User.create({ email, name: `Other viewer ${tag}`, role: "viewer", passwordHash: await hashPassword("other-viewer-pass") });
     await m.Membership.create({ userId: user.id, groupId: group.id, isLead: false });
     const { context, page: p } = await newPage(browser);
-    await signInAs(p, email, "other-viewer-pass");
-    await p.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(p, email, "other-viewer-pass");
     await p.goto(`/ensembles/${tinyId}`);
     await p.getByTestId("not-found").waitFor();
     await p.goto(`/runs/${tinyRunId}`);

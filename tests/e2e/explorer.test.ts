@@ -6,7 +6,7 @@ import crypto from "node:crypto";
 import fs from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInToOverview, shot } from "./support/browser";
 import { until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { concise } from "@/lib/format";
@@ -33,8 +33,7 @@ let runId = "";
 beforeAll(async () => {
   ({ browser, close } = await launch());
   ({ page } = await newPage(browser));
-  await signInAs(page, researcher.email, researcher.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, researcher.email, researcher.password);
 });
 afterAll(async () => close?.());
 
@@ -129,15 +128,13 @@ describe("explorer and run analysis in the browser", () => {
     const m = db();
     const group = await m.Group.create({ slug: `e2e-explorer-${tag}`, name: `Explorer outsiders ${tag}`, institute: "e2e" });
     const { context: adminCtx, page: adminPage } = await newPage(browser);
-    await signInAs(adminPage, admin.email, admin.password);
-    await adminPage.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(adminPage, admin.email, admin.password);
     const email = `outsider.${tag}@other.example`;
     const made = await adminPage.request.post("/api/v1/people", { data: { email, name: `Outsider ${tag}`, role: "viewer", password: "outsider-pass-1", groupIds: [group.id] } });
     expect(made.status()).toBe(201);
     await adminCtx.close();
     const { context, page: p } = await newPage(browser);
-    await signInAs(p, email, "outsider-pass-1");
-    await p.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(p, email, "outsider-pass-1");
     const est = ((await (await p.request.get(`/api/v1/estimates?ensemble=${ensembleId}`)).json()) as { data: { total: number } }).data;
     expect(est.total).toBe(0);
     const plot = ((await (await p.request.get(`/api/v1/plots/estimates?ensemble=${ensembleId}&observable=e&x=T`)).json()) as { data: { series: unknown[] } }).data;

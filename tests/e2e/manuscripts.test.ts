@@ -9,7 +9,7 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
 import yauzl from "yauzl";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInAs, signInToOverview, shot } from "./support/browser";
 import { until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { resolveArchived } from "@/lib/storage/archive-path";
@@ -58,8 +58,7 @@ beforeAll(async () => {
   // a group of its own, so the exhibits select only this test's runs; its PI leads it, its viewer only reads
   groupId = (await db().Group.create({ slug: `e2e-ms-${tag}`, name: `Manuscript group ${tag}`, institute: "e2e" })).id;
   const { context, page: a } = await newPage(browser);
-  await signInAs(a, admin.email, admin.password);
-  await a.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(a, admin.email, admin.password);
   for (const [p, role] of [[PI, "pi"], [VIEWER, "viewer"], [RESEARCHER, "researcher"]] as const) {
     const res = await a.request.post("/api/v1/people", { data: { email: p.email, name: p.name, role, password: p.password, groupIds: [groupId] } });
     expect(res.status()).toBe(201);
@@ -70,8 +69,7 @@ beforeAll(async () => {
   }
   await context.close();
   ({ page } = await newPage(browser));
-  await signInAs(page, PI.email, PI.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, PI.email, PI.password);
 }, 60_000);
 afterAll(async () => { cleanupTemp(); await close?.(); });
 

@@ -4,7 +4,7 @@
 import crypto from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInToOverview, shot } from "./support/browser";
 import { until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 
@@ -20,8 +20,7 @@ let page: Page;
 beforeAll(async () => {
   ({ browser, close } = await launch());
   ({ page } = await newPage(browser));
-  await signInAs(page, researcher.email, researcher.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, researcher.email, researcher.password);
 });
 afterAll(async () => close?.());
 

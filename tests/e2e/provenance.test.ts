@@ -5,7 +5,7 @@ import crypto from "node:crypto";
 import fs from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
-import { launch, newPage, shotsDir, signInAs, shot } from "./support/browser";
+import { launch, newPage, shotsDir, signInToOverview, shot } from "./support/browser";
 import { until } from "./support/wait";
 import { DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { db } from "@/models";
@@ -27,8 +27,7 @@ let runId = "";
 beforeAll(async () => {
   ({ browser, close } = await launch());
   ({ page } = await newPage(browser));
-  await signInAs(page, pi.email, pi.password);
-  await page.getByRole("heading", { name: "Overview" }).waitFor();
+  await signInToOverview(page, pi.email, pi.password);
   const res = await page.request.post("/api/v1/ensembles", { data: spec });
   expect(res.status()).toBe(201);
   const ensembleId = ((await res.json()) as { data: { ensembleId: string } }).data.ensembleId;

@@ -2,7 +2,7 @@
 // a wrong password is refused; a viewer cannot reach the People page.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser } from "playwright-core";
-import { launch, newPage, signInAs, shot } from "./support/browser";
+import { launch, newPage, signInAs, signInToOverview, shot } from "./support/browser";
 import { DEMO_ALLOCATION, DEMO_PEOPLE } from "@/lib/seed/demo-scenario";
 import { coreHours } from "@/lib/format";
 
@@ -15,8 +15,7 @@ describe("sign-in in the browser", () => {
   for (const person of DEMO_PEOPLE) {
     it(`${person.role} signs in, sees the seeded dashboard, signs out`, async () => {
       const { context, page } = await newPage(browser);
-      await signInAs(page, person.email, person.password);
-      await page.getByRole("heading", { name: "Overview" }).waitFor();
+      await signInToOverview(page, person.email, person.password);
       await expect(page.getByTestId("whoami").textContent()).resolves.toBe(person.name);
       const allocations = page.getByTestId("allocations");
       await expect(allocations.textContent()).resolves.toContain(DEMO_ALLOCATION.name);
@@ -50,8 +49,7 @@ describe("sign-in in the browser", () => {
   it("a viewer cannot reach the People page", async () => {
     const viewer = DEMO_PEOPLE.find((p) => p.role === "viewer")!;
     const { context, page } = await newPage(browser);
-    await signInAs(page, viewer.email, viewer.password);
-    await page.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(page, viewer.email, viewer.password);
     await page.goto("/people");
     await page.getByText("You may not open this page").waitFor();
     expect(await page.getByTestId("people").count()).toBe(0);
@@ -62,8 +60,7 @@ describe("sign-in in the browser", () => {
   it("an admin sees the People page with every demo person", async () => {
     const admin = DEMO_PEOPLE.find((p) => p.role === "admin")!;
     const { context, page } = await newPage(browser);
-    await signInAs(page, admin.email, admin.password);
-    await page.getByRole("heading", { name: "Overview" }).waitFor();
+    await signInToOverview(page, admin.email, admin.password);
     await page.goto("/people");
     const table = page.getByTestId("people");
     await table.waitFor();

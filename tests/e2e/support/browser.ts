@@ -27,4 +27,10 @@ export async function signInAs(page: Page, email: string, password: string) {
   await page.getByRole("button", { name: "Sign in" }).click();
 }
 
+/** Sign in and wait for the Overview page that follows a good sign-in. */
+export async function signInToOverview(page: Page, email: string, password: string) {
+  await signInAs(page, email, password);
+  await page.getByRole("heading", { name: "Overview" }).waitFor();
+}
+
 export const shot = (page: Page, name: string) => page.screenshot({ path: path.join(shotsDir, `${name}.png`), fullPage: true });
